@@ -1,0 +1,96 @@
+/** Shared by the start script and the end-to-end tests: migrate, build and serve. */
+import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { existsSync, readdirSync, statSync, writeFileSync } from 'node:fs';
+import net from 'node:net';
+import path from 'node:path';
+import { ROOT } from './mariadb';
+
+/** Apply pending migrations to the database named in the environment. */
+export async function migrate(): Promise<number> {
+	const { db, closeDb } = await import('../../src/lib/server/db');
+	const { createMigrator } = await import('../../src/lib/server/db/migrator');
+	const done = await createMigrator(db()).up();
+	await closeDb();
+	return done.length;
+}
+
+function newest(p: string): number {
+	const s = statSync(p);
+	if (!s.isDirectory()) return s.mtimeMs;
+	return Math.max(s.mtimeMs, ...readdirSync(p).map((f) => newest(path.join(p, f))));
+}
+
+const STAMP = path.join(ROOT, 'build', '.built');
+const INPUTS = ['src', 'static', 'package.json', 'vite.config.ts', 'svelte.config.js'];
+
+/** Build with Vite when build/ is missing or older than its sources. */
+export function buildIfNeeded(force = false): boolean {
+	const stale =
+		force ||
+		!existsSync(STAMP) ||
+		Math.max(...INPUTS.map((p) => newest(path.join(ROOT, p)))) > statSync(STAMP).mtimeMs;
+	if (!stale) return false;
+	console.log('Building the app…');
+	const r = spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: ROOT, stdio: 'inherit' });
+	if (r.status !== 0) throw new Error('vite build failed');
+	writeFileSync(STAMP, new Date().toISOString());
+	return true;
+}
+
+export function portFree(port: number, host = '127.0.0.1'): Promise<boolean> {
+	return new Promise((resolve) => {
+		const srv = net.createServer();
+		srv.once('error', () => resolve(false));
+		srv.listen(port, host, () => srv.close(() => resolve(true)));
+	});
+}
+
+export async function freePort(from: number): Promise<number> {
+	let port = from;
+	while (!(await portFree(port))) port++;
+	return port;
+}
+
+/** Start `node build` in its own process group; resolves once it answers /api/health. */
+export async function serve(
+	port: number,
+	env: Record<string, string>,
+	stdio: 'inherit' | 'ignore' = 'inherit'
+): Promise<{ child: ChildProcess; url: string }> {
+	const url = `http://localhost:${port}`;
+	const child = spawn(process.execPath, ['build'], {
+		cwd: ROOT,
+		detached: true,
+		stdio,
+		env: {
+			...process.env,
+			...env,
+			HOST: '127.0.0.1',
+			PORT: String(port),
+			ORIGIN: url,
+			BODY_SIZE_LIMIT: '8M',
+			MIGRATIONS_DIR: path.join(ROOT, 'migrations')
+		}
+	});
+	for (let i = 0; i < 200; i++) {
+		if (child.exitCode !== null) throw new Error(`the app exited with code ${child.exitCode}`);
+		try {
+			const r = await fetch(`${url}/api/health`, { headers: { connection: 'close' } });
+			if (r.status < 500 || r.status === 503) return { child, url };
+		} catch {
+			/* not up yet */
+		}
+		await new Promise((r) => setTimeout(r, 100));
+	}
+	throw new Error('the app did not answer within 20 s');
+}
+
+/** Stop a server started by `serve` (its whole process group). */
+export function stopServe(child: ChildProcess): void {
+	child.unref();
+	try {
+		if (child.pid) process.kill(-child.pid, 'SIGTERM');
+	} catch {
+		/* already gone */
+	}
+}

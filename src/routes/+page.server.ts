@@ -1,0 +1,5 @@
+import { checkHealth } from '$lib/server/health';
+
+export async function load() {
+	return { health: await checkHealth() };
+}

@@ -1,0 +1,43 @@
+/** Debian's Chromium through playwright-core (never a browser download). */
+import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { chromium, type BrowserContext, type Page } from 'playwright-core';
+
+export const PHONE = { width: 390, height: 844 };
+export const SHOTS = path.resolve('screenshots');
+
+export async function openPhone(): Promise<{ context: BrowserContext; page: Page; close: () => Promise<void> }> {
+	const profile = mkdtempSync(path.join(tmpdir(), 'fieldbench-e2e-'));
+	const context = await chromium.launchPersistentContext(profile, {
+		executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
+		headless: true,
+		viewport: PHONE,
+		deviceScaleFactor: 2,
+		isMobile: true,
+		hasTouch: true,
+		args: [
+			'--no-sandbox',
+			'--disable-gpu',
+			'--disable-quic',
+			'--no-first-run',
+			'--disable-background-networking',
+			'--disable-component-update',
+			'--disable-sync'
+		]
+	});
+	const page = context.pages()[0] ?? (await context.newPage());
+	return {
+		context,
+		page,
+		close: async () => {
+			await context.close();
+			rmSync(profile, { recursive: true, force: true });
+		}
+	};
+}
+
+export async function shot(page: Page, name: string) {
+	mkdirSync(SHOTS, { recursive: true });
+	await page.screenshot({ path: path.join(SHOTS, `${name}.png`) });
+}
