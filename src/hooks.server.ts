@@ -1,11 +1,18 @@
 import type { Handle } from '@sveltejs/kit';
+import { readSession } from '$lib/server/auth/session';
 import { db } from '$lib/server/db';
+import { errorBody } from '$lib/server/errors';
 
 db(); // registers the models once per server process
 
 export const handle: Handle = async ({ event, resolve }) => {
-	event.locals.user = null;
-	event.locals.sessionId = null;
+	const { user, sessionId } = await readSession(event.cookies, event.url);
+	event.locals.user = user;
+	event.locals.sessionId = sessionId;
+
+	if (event.url.pathname.startsWith('/api/') && !event.route.id) {
+		return Response.json(errorBody('not_found', 'No such API route'), { status: 404 });
+	}
 	const response = await resolve(event);
 	response.headers.set('X-Content-Type-Options', 'nosniff');
 	response.headers.set('Referrer-Policy', 'same-origin');

@@ -7,7 +7,12 @@ import { chromium, type BrowserContext, type Page } from 'playwright-core';
 export const PHONE = { width: 390, height: 844 };
 export const SHOTS = path.resolve('screenshots');
 
-export async function openPhone(): Promise<{ context: BrowserContext; page: Page; close: () => Promise<void> }> {
+export async function openPhone(): Promise<{
+	context: BrowserContext;
+	page: Page;
+	errors: string[];
+	close: () => Promise<void>;
+}> {
 	const profile = mkdtempSync(path.join(tmpdir(), 'fieldbench-e2e-'));
 	const context = await chromium.launchPersistentContext(profile, {
 		executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
@@ -27,9 +32,12 @@ export async function openPhone(): Promise<{ context: BrowserContext; page: Page
 		]
 	});
 	const page = context.pages()[0] ?? (await context.newPage());
+	const errors: string[] = []; // uncaught errors in the page (a failed hydration shows here)
+	page.on('pageerror', (e) => errors.push(e.message));
 	return {
 		context,
 		page,
+		errors,
 		close: async () => {
 			await context.close();
 			rmSync(profile, { recursive: true, force: true });

@@ -1,10 +1,13 @@
-import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
 import { openPhone, shot } from './browser';
 
 const base = inject('baseURL');
 let phone: Awaited<ReturnType<typeof openPhone>>;
 beforeAll(async () => {
 	phone = await openPhone();
+});
+afterEach(() => {
+	expect(phone.errors, 'uncaught errors in the page').toEqual([]);
 });
 afterAll(async () => {
 	await phone?.close();

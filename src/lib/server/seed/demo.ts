@@ -83,10 +83,11 @@ export async function seedDemo(): Promise<number> {
 		}
 	}
 	const lead: Actor = { userId: DEMO_USERS[1].id, workshopId: DEMO_WORKSHOP.id, role: 'lead', deviceId: 'seed' };
-	const steps: [typeof Customer | typeof Vehicle | typeof Job | typeof Component | typeof SpecSheet, string, () => Promise<unknown>][] = [
-		...CUSTOMERS.map(({ id, ...c }) => [Customer, id, () => customers.create(lead, c, { id })] as const),
-		...VEHICLES.map(({ id, ...v }) => [Vehicle, id, () => vehicles.create(lead, v, { id })] as const),
-		...JOBS.map(({ id, ...j }) => [Job, id, () => jobs.create(lead, j, { id })] as const),
+	type Step = [{ findOne: (o: object) => Promise<unknown> }, string, () => Promise<unknown>];
+	const steps: Step[] = [
+		...CUSTOMERS.map(({ id, ...c }) => [Customer, id, () => customers.create(lead, c, { id })] as Step),
+		...VEHICLES.map(({ id, ...v }) => [Vehicle, id, () => vehicles.create(lead, v, { id })] as Step),
+		...JOBS.map(({ id, ...j }) => [Job, id, () => jobs.create(lead, j, { id })] as Step),
 		[Component, COIL.id, () => components.create(lead, (({ id, ...c }) => c)(COIL), { id: COIL.id })],
 		[SpecSheet, COIL_SHEET.id, async () => {
 			const { id, ...s } = COIL_SHEET;

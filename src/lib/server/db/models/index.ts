@@ -7,8 +7,6 @@ import {
 	DataTypes,
 	Model,
 	type CreationOptional,
-	type InferAttributes,
-	type InferCreationAttributes,
 	type Sequelize
 } from 'sequelize';
 import { COMPONENT_KINDS } from '../../../schemas/component';
@@ -17,14 +15,14 @@ import { JOB_STATUSES, type JobStatus } from '../../../schemas/job';
 export const ROLES = ['apprentice', 'technician', 'lead', 'owner'] as const;
 export type Role = (typeof ROLES)[number];
 
-export class Workshop extends Model<InferAttributes<Workshop>, InferCreationAttributes<Workshop>> {
+export class Workshop extends Model {
 	declare id: string;
 	declare name: string;
 	declare createdAt: CreationOptional<Date>;
 	declare updatedAt: CreationOptional<Date>;
 }
 
-export class User extends Model<InferAttributes<User>, InferCreationAttributes<User>> {
+export class User extends Model {
 	declare id: string;
 	declare workshopId: string;
 	declare email: string;
@@ -37,14 +35,14 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
 	declare updatedAt: CreationOptional<Date>;
 }
 
-export class Session extends Model<InferAttributes<Session>, InferCreationAttributes<Session>> {
+export class Session extends Model {
 	declare id: string;
 	declare userId: string;
 	declare expiresAt: Date;
 	declare createdAt: CreationOptional<Date>;
 }
 
-export class AuditEntry extends Model<InferAttributes<AuditEntry>, InferCreationAttributes<AuditEntry>> {
+export class AuditEntry extends Model {
 	declare id: CreationOptional<number>;
 	declare workshopId: string;
 	declare userId: string | null;
@@ -59,7 +57,7 @@ export class AuditEntry extends Model<InferAttributes<AuditEntry>, InferCreation
 	declare newValue: string | null;
 }
 
-export class Change extends Model<InferAttributes<Change>, InferCreationAttributes<Change>> {
+export class Change extends Model {
 	declare workshopId: string;
 	declare seq: number;
 	declare entity: string;
@@ -72,7 +70,7 @@ export class Change extends Model<InferAttributes<Change>, InferCreationAttribut
 	declare at: Date;
 }
 
-export class Customer extends Model<InferAttributes<Customer>, InferCreationAttributes<Customer>> {
+export class Customer extends Model {
 	declare id: string;
 	declare workshopId: string;
 	declare name: string;

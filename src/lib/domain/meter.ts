@@ -1,0 +1,145 @@
+/**
+ * The technician's meter: lead compensation, the accuracy of a range in the
+ * ±(% of reading + counts) form, whether a range can tell a reading from a spec's limits,
+ * and settling several samples into one value. Values in base units (Ω, V, A); an
+ * over-range reading (OL) is `Infinity`.
+ */
+import { compareToReference, medianOf, MIN_VALUES_TO_COMPARE } from './compare';
+import type { Limits } from './spec';
+
+/** One range of a digital meter, as its accuracy table states it. */
+export interface MeterRange {
+	/** Percent of reading (0.5 means 0.5 %), ≥ 0. */
+	pctOfReading: number;
+	/** Number of counts (least significant digits) added, ≥ 0. */
+	counts: number;
+	/** Value of one count, the range's resolution, in base units, > 0. */
+	resolution: number;
+	/** Largest value the range can show, in base units; above it the meter shows OL. */
+	maxReading?: number;
+}
+
+/**
+ * Subtract the resistance of the test leads (read with the tips shorted) from a reading.
+ * Both in ohms. Never below zero: a reading below the lead resistance is a bad zero, which
+ * the flow warns about (see {@link isBadZero}). `Infinity` (OL) stays `Infinity`; `NaN`
+ * stays `NaN`.
+ */
+export function compensateLeads(reading: number, leadResistance: number): number {
+	return Math.max(0, reading - leadResistance);
+}
+
+/** Whether a reading is below the lead resistance, i.e. the leads were zeroed badly (ohms). */
+export function isBadZero(reading: number, leadResistance: number): boolean {
+	return reading < leadResistance;
+}
+
+/**
+ * The ± absolute uncertainty of a reading on a range specified as ±(% of reading + counts):
+ * `|reading| · pctOfReading / 100 + counts · resolution`, in the reading's unit.
+ * `Infinity` for an OL reading.
+ */
+export function uncertainty(
+	reading: number,
+	{ pctOfReading, counts, resolution }: Pick<MeterRange, 'pctOfReading' | 'counts' | 'resolution'>
+): number {
+	return (Math.abs(reading) * pctOfReading) / 100 + counts * resolution;
+}
+
+/**
+ * Ratio a range must reach against a spec: the 4 : 1 test uncertainty ratio that
+ * ANSI/NCSL Z540.3 falls back to when the false-accept risk is not computed.
+ */
+export const MIN_UNCERTAINTY_RATIO = 4;
+
+/**
+ * How well a range can judge a spec: the smallest, over the non-null limits L, of
+ * `T / u(L)` where
+ * - `T` is the spec's half-width `(max − min) / 2` for a two-sided spec, or `|L|` for a
+ *   one-sided one (our extension: there is no band to halve);
+ * - `u(L)` is the range's uncertainty at the limit, but never less than half a count
+ *   (the display cannot show a difference smaller than its resolution).
+ *
+ * 0 when a limit is beyond the range's `maxReading` (the limit would read OL);
+ * `Infinity` with no limits.
+ */
+export function resolvingRatio(range: MeterRange, { min, max }: Limits): number {
+	const limits = [min, max].filter((l): l is number => l !== null);
+	const maxReading = range.maxReading ?? Infinity;
+	if (limits.some((l) => Math.abs(l) > maxReading)) return 0;
+	const halfWidth = min !== null && max !== null ? (max - min) / 2 : null;
+	return Math.min(
+		...limits.map((limit) => {
+			const u = Math.max(uncertainty(limit, range), range.resolution / 2);
+			return (halfWidth ?? Math.abs(limit)) / u;
+		})
+	);
+}
+
+/**
+ * Decide, before measuring, whether a range can tell a reading from the spec's limits.
+ * Rule: {@link resolvingRatio} ≥ `minRatio` (default {@link MIN_UNCERTAINTY_RATIO} = 4),
+ * i.e. the uncertainty at each limit is at most a quarter of the spec's half-width (or of
+ * the limit itself for a one-sided spec), and the limits fit on the range.
+ * A spec with no limits is always resolvable.
+ */
+export function canResolve(
+	range: MeterRange,
+	limits: Limits,
+	minRatio: number = MIN_UNCERTAINTY_RATIO
+): boolean {
+	return resolvingRatio(range, limits) >= minRatio;
+}
+
+/** How several samples of one measurement become one value. */
+export type SettleMode = 'lowest' | 'median';
+
+/**
+ * Settle samples into one value: `lowest` is the plain minimum, `median` the median (mean
+ * of the two middle samples for an even count). `NaN` samples are ignored; OL samples
+ * (`Infinity`) count as the largest values.
+ *
+ * @returns the value, or `null` when there are no samples.
+ */
+export function settledValue(samples: readonly number[], mode: SettleMode): number | null {
+	const valid = samples.filter((s) => !Number.isNaN(s));
+	if (valid.length === 0) return null;
+	return mode === 'lowest' ? Math.min(...valid) : medianOf(valid);
+}
+
+/** Below this many ohms the lowest sample is kept (common practice, see {@link pickSettled}). */
+export const LOWEST_BELOW_OHM = 10;
+
+/** Result of {@link pickSettled}. */
+export interface SettledPick {
+	/** Settled value in ohms (`Infinity` when the samples read OL). */
+	value: number;
+	/** How it was settled. */
+	mode: SettleMode;
+	/** Indexes of samples far from the others; the flow asks to measure again. */
+	suspects: number[];
+}
+
+/**
+ * Settle resistance samples (ohms) the way the flow does: below {@link LOWEST_BELOW_OHM} by
+ * their median, keep the lowest (contact resistance only ever adds, so the lowest is the
+ * best contact; common practice), otherwise the median. Flags samples deviating from the
+ * median of all samples by more than `tolerance` (a fraction, default 0.1) — needs 3 samples.
+ * (The median of all, not of the others as in `findOutliers`: with three samples the median
+ * of the other two is their mean, which an outlier drags, and good samples would be flagged.)
+ *
+ * @returns the pick, or `null` when there are no samples.
+ */
+export function pickSettled(
+	samples: readonly number[],
+	{ tolerance = 0.1 }: { tolerance?: number } = {}
+): SettledPick | null {
+	const median = settledValue(samples, 'median');
+	if (median === null) return null;
+	const mode: SettleMode = median < LOWEST_BELOW_OHM ? 'lowest' : 'median';
+	const enough = samples.filter((s) => !Number.isNaN(s)).length >= MIN_VALUES_TO_COMPARE;
+	const suspects = samples.flatMap((s, i) =>
+		enough && !Number.isNaN(s) && compareToReference(s, median, tolerance) !== 0 ? [i] : []
+	);
+	return { value: settledValue(samples, mode) ?? median, mode, suspects };
+}

@@ -1,0 +1,34 @@
+/**
+ * Wraps every JSON handler: the signed-in check (401), the role check (403), and one error
+ * body for everything thrown (DESIGN §5).
+ */
+import type { RequestEvent } from '@sveltejs/kit';
+import { requireRole, requireUser } from './auth/guards';
+import type { SessionUser } from './auth/types';
+import type { Role } from './db/models';
+import { AppError, toErrorResponse, ValidationError } from './errors';
+
+type Handler = (event: RequestEvent, user: SessionUser) => Promise<Response | unknown>;
+
+export function api(fn: Handler, opts: { roles?: readonly Role[] } = {}) {
+	return async (event: RequestEvent): Promise<Response> => {
+		try {
+			const user = opts.roles ? requireRole(event.locals, opts.roles) : requireUser(event.locals);
+			const out = await fn(event, user);
+			return out instanceof Response ? out : Response.json(out);
+		} catch (err) {
+			return toErrorResponse(err);
+		}
+	};
+}
+
+/** Parse the JSON body; a malformed body is a 400 like any invalid input. */
+export async function readJson(request: Request): Promise<unknown> {
+	try {
+		return await request.json();
+	} catch {
+		throw new ValidationError({ _: 'The body is not valid JSON' }, 'Malformed JSON');
+	}
+}
+
+export { AppError };

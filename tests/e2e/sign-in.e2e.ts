@@ -1,0 +1,95 @@
+import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
+import { DEMO_PASSWORD, DEMO_USERS } from '../../src/lib/server/seed/demo';
+import { openPhone, shot } from './browser';
+
+const base = inject('baseURL');
+let phone: Awaited<ReturnType<typeof openPhone>>;
+beforeAll(async () => {
+	phone = await openPhone();
+});
+afterEach(() => {
+	expect(phone.errors, 'uncaught errors in the page').toEqual([]);
+});
+afterAll(async () => {
+	await phone?.close();
+});
+
+const ROLE_WORDS = { owner: 'Owner', lead: 'Workshop lead', technician: 'Technician', apprentice: 'Apprentice' };
+
+async function signIn(email: string) {
+	const { page, context } = phone;
+	await context.clearCookies();
+	await page.goto(`${base}/sign-in`);
+	await page.getByLabel('E-mail').fill(email);
+	await page.getByLabel('Password').fill(DEMO_PASSWORD);
+	await page.getByRole('button', { name: 'Sign in' }).click();
+	await page.waitForURL(`${base}/home`);
+}
+
+describe('sign-in at phone size', () => {
+	for (const u of DEMO_USERS) {
+		it(`lets the demo ${u.role} sign in and see the first screen`, async () => {
+			const { page } = phone;
+			await signIn(u.email);
+			await expect.poll(() => page.getByTestId('who').textContent()).toBe(u.name);
+			expect(await page.getByTestId('role').textContent()).toBe(ROLE_WORDS[u.role]);
+			await page.getByTestId('sync-badge').waitFor();
+			await page.locator('[data-testid=job-list], p:has-text("No open jobs")').first().waitFor();
+			if (u.role === 'technician' || u.role === 'apprentice') {
+				expect(await page.locator('[data-testid=job-list] > li').count()).toBe(1);
+			} else {
+				expect(await page.locator('[data-testid=job-list] > li').count()).toBeGreaterThanOrEqual(2);
+			}
+			const width = await page.evaluate(() => document.documentElement.scrollWidth);
+			expect(width).toBeLessThanOrEqual(390);
+			await shot(page, `home-${u.role}`);
+		});
+	}
+
+	it('makes every button and link on the first screen at least 56 px tall', async () => {
+		const { page } = phone;
+		await signIn(DEMO_USERS[2].email);
+		const small = await page.$$eval('a, button', (els) =>
+			els.map((e) => ({ text: e.textContent?.trim(), h: e.getBoundingClientRect().height })).filter((x) => x.h < 56)
+		);
+		expect(small).toEqual([]);
+	});
+
+	it('shows a plain message for a wrong password and keeps the e-mail typed', async () => {
+		const { page, context } = phone;
+		await context.clearCookies();
+		await page.goto(`${base}/sign-in`);
+		await page.getByLabel('E-mail').fill(DEMO_USERS[0].email);
+		await page.getByLabel('Password').fill('wrong password');
+		await page.getByRole('button', { name: 'Sign in' }).click();
+		await expect.poll(() => page.getByRole('alert').textContent()).toContain('do not match');
+		expect(await page.getByLabel('E-mail').inputValue()).toBe(DEMO_USERS[0].email);
+		await shot(page, 'sign-in-wrong-password');
+	});
+
+	it('keeps the apprentice out of the lead page', async () => {
+		const { page } = phone;
+		await signIn(DEMO_USERS[3].email);
+		const r = await page.goto(`${base}/team`);
+		expect(r?.status()).toBe(403);
+		expect(await page.getByTestId('error-status').textContent()).toContain('Not for your role');
+	});
+
+	it('shows the lead the workshop team', async () => {
+		const { page } = phone;
+		await signIn(DEMO_USERS[1].email);
+		await page.goto(`${base}/team`);
+		expect(await page.locator('[data-testid=team] tbody tr').count()).toBe(4);
+		await shot(page, 'team-lead');
+	});
+
+	it('signs out and then sends the visitor to sign-in', async () => {
+		const { page } = phone;
+		await signIn(DEMO_USERS[2].email);
+		await page.getByRole('link', { name: 'Sign out' }).click();
+		await page.getByRole('button', { name: 'Sign out' }).click();
+		await page.waitForURL(`${base}/sign-in`);
+		await page.goto(`${base}/home`);
+		expect(page.url()).toContain('/sign-in?next=');
+	});
+});
