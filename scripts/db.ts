@@ -8,7 +8,11 @@ if (cmd === 'start') {
 	const { port, started } = await startServer();
 	ensureDatabase(DB_NAME);
 	console.log(`MariaDB ${started ? 'started' : 'already running'} on 127.0.0.1:${port}`);
-	console.log(Object.entries(dbEnv(port, DB_NAME)).map(([k, v]) => `${k}=${v}`).join(' '));
+	console.log(
+		Object.entries(dbEnv(port, DB_NAME))
+			.map(([k, v]) => `${k}=${v}`)
+			.join(' ')
+	);
 } else if (cmd === 'stop') {
 	console.log((await stopServer()) ? 'MariaDB stopped.' : 'MariaDB was not running.');
 } else if (cmd === 'status') {

@@ -9,7 +9,9 @@ import { dbEnv, ensureDatabase, startServer } from './lib/mariadb';
 const name = process.env.DB_NAME ?? 'fieldbench';
 const { port: dbPort, started } = await startServer();
 ensureDatabase(name);
-console.log(`MariaDB ${started ? 'started' : 'already running'} on 127.0.0.1:${dbPort} (database ${name})`);
+console.log(
+	`MariaDB ${started ? 'started' : 'already running'} on 127.0.0.1:${dbPort} (database ${name})`
+);
 Object.assign(process.env, dbEnv(dbPort, name));
 
 console.log(`Migrations: ${await migrate()} applied.`);
@@ -22,7 +24,9 @@ console.log(made ? `Demo workshop: ${made} record(s) created.` : 'Demo workshop:
 buildIfNeeded();
 const appPort = await freePort(Number(process.env.PORT ?? 3000));
 const { child, url } = await serve(appPort, dbEnv(dbPort, name));
-console.log(`\nFieldbench is running at ${url}\n(stop with Ctrl+C; stop the database with: npm run db:stop)\n`);
+console.log(
+	`\nFieldbench is running at ${url}\n(stop with Ctrl+C; stop the database with: npm run db:stop)\n`
+);
 
 for (const sig of ['SIGINT', 'SIGTERM'] as const) {
 	process.on(sig, () => {

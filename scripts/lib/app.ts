@@ -31,7 +31,10 @@ export function buildIfNeeded(force = false): boolean {
 		Math.max(...INPUTS.map((p) => newest(path.join(ROOT, p)))) > statSync(STAMP).mtimeMs;
 	if (!stale) return false;
 	console.log('Building the app…');
-	const r = spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: ROOT, stdio: 'inherit' });
+	const r = spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], {
+		cwd: ROOT,
+		stdio: 'inherit'
+	});
 	if (r.status !== 0) throw new Error('vite build failed');
 	writeFileSync(STAMP, new Date().toISOString());
 	return true;

@@ -91,10 +91,14 @@ function portFree(port: number): Promise<boolean> {
 }
 
 function ping(): boolean {
-	const r = spawnSync(which('mariadb-admin')!, [`--defaults-file=${CNF}`, '--protocol=TCP', 'ping'], {
-		stdio: 'ignore',
-		timeout: 5000
-	});
+	const r = spawnSync(
+		which('mariadb-admin')!,
+		[`--defaults-file=${CNF}`, '--protocol=TCP', 'ping'],
+		{
+			stdio: 'ignore',
+			timeout: 5000
+		}
+	);
 	return r.status === 0;
 }
 
@@ -155,10 +159,14 @@ export async function startServer(): Promise<{ port: number; started: boolean }>
 			{ stdio: 'ignore' }
 		);
 	}
-	const child = spawn(which('mariadbd')!, [`--defaults-file=${CNF}`, ...(isRoot ? ['--user=root'] : [])], {
-		detached: true,
-		stdio: 'ignore'
-	});
+	const child = spawn(
+		which('mariadbd')!,
+		[`--defaults-file=${CNF}`, ...(isRoot ? ['--user=root'] : [])],
+		{
+			detached: true,
+			stdio: 'ignore'
+		}
+	);
 	child.unref();
 	for (let i = 0; i < 300; i++) {
 		if (ping()) {

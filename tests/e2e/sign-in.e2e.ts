@@ -14,7 +14,12 @@ afterAll(async () => {
 	await phone?.close();
 });
 
-const ROLE_WORDS = { owner: 'Owner', lead: 'Workshop lead', technician: 'Technician', apprentice: 'Apprentice' };
+const ROLE_WORDS = {
+	owner: 'Owner',
+	lead: 'Workshop lead',
+	technician: 'Technician',
+	apprentice: 'Apprentice'
+};
 
 async function signIn(email: string) {
 	const { page, context } = phone;
@@ -50,7 +55,9 @@ describe('sign-in at phone size', () => {
 		const { page } = phone;
 		await signIn(DEMO_USERS[2].email);
 		const small = await page.$$eval('a, button', (els) =>
-			els.map((e) => ({ text: e.textContent?.trim(), h: e.getBoundingClientRect().height })).filter((x) => x.h < 56)
+			els
+				.map((e) => ({ text: e.textContent?.trim(), h: e.getBoundingClientRect().height }))
+				.filter((x) => x.h < 56)
 		);
 		expect(small).toEqual([]);
 	});

@@ -1,5 +1,11 @@
 /** Test databases on the private MariaDB: a fresh one per runner, never the demo's. */
-import { dbEnv, dropDatabase, ensureDatabase, startServer, stopServer } from '../../scripts/lib/mariadb';
+import {
+	dbEnv,
+	dropDatabase,
+	ensureDatabase,
+	startServer,
+	stopServer
+} from '../../scripts/lib/mariadb';
 
 /** Start (or reuse) the server and make an empty database `name`. */
 export async function freshDatabase(name: string) {

@@ -20,11 +20,18 @@ export class Client {
 
 	headers(extra: Record<string, string> = {}) {
 		const cookie = [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ');
-		return { origin: this.base, 'x-forwarded-for': this.address, ...(cookie ? { cookie } : {}), ...extra };
+		return {
+			origin: this.base,
+			'x-forwarded-for': this.address,
+			...(cookie ? { cookie } : {}),
+			...extra
+		};
 	}
 
 	async get(path: string, accept = 'application/json') {
-		return this.keep(await fetch(this.base + path, { headers: this.headers({ accept }), redirect: 'manual' }));
+		return this.keep(
+			await fetch(this.base + path, { headers: this.headers({ accept }), redirect: 'manual' })
+		);
 	}
 
 	async json(method: string, path: string, body: unknown) {
@@ -42,7 +49,10 @@ export class Client {
 		return this.keep(
 			await fetch(this.base + path, {
 				method: 'POST',
-				headers: this.headers({ 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' }),
+				headers: this.headers({
+					'content-type': 'application/x-www-form-urlencoded',
+					accept: 'text/html'
+				}),
 				body: new URLSearchParams(fields).toString(),
 				redirect: 'manual'
 			})

@@ -17,11 +17,13 @@ beforeAll(async () => {
 	a = await makeWorkshop('A');
 	b = await makeWorkshop('B');
 	const c = await customers.create(b.users.lead.actor, { name: 'Other workshop customer' });
-	jobB = (await jobs.create(b.users.lead.actor, {
-		customerId: c.id,
-		complaint: 'Belongs to workshop B',
-		assigneeId: b.users.technician.id
-	})).id as string;
+	jobB = (
+		await jobs.create(b.users.lead.actor, {
+			customerId: c.id,
+			complaint: 'Belongs to workshop B',
+			assigneeId: b.users.technician.id
+		})
+	).id as string;
 });
 
 describe('signing in', () => {
@@ -35,7 +37,11 @@ describe('signing in', () => {
 		expect(cookie).toMatch(/SameSite=Lax/i);
 		expect(cookie).not.toMatch(/Secure/i); // plain http here; https requests get Secure
 		const me = await (await c.get('/api/me')).json();
-		expect(me.user).toMatchObject({ id: a.users.technician.id, role: 'technician', workshopId: a.workshop.id });
+		expect(me.user).toMatchObject({
+			id: a.users.technician.id,
+			role: 'technician',
+			workshopId: a.workshop.id
+		});
 	});
 
 	it('gives a wrong password and an unknown e-mail the same answer', async () => {
@@ -43,7 +49,8 @@ describe('signing in', () => {
 		const unknown = await client().signIn('nobody@test.example', 'not-the-password');
 		expect(wrong.status).toBe(400);
 		expect(unknown.status).toBe(400);
-		const text = async (r: Response) => (await r.text()).match(/role="alert"[^>]*>([\s\S]*?)<\/p>/)?.[1];
+		const text = async (r: Response) =>
+			(await r.text()).match(/role="alert"[^>]*>([\s\S]*?)<\/p>/)?.[1];
 		const [t1, t2] = [await text(wrong), await text(unknown)];
 		expect(t1).toContain('do not match');
 		expect(t1).toBe(t2);
@@ -84,7 +91,8 @@ describe('signing in', () => {
 	it('answers the sixth quick failure for one account with 429 and a retry time', async () => {
 		const w = await makeWorkshop('Throttle');
 		const statuses: number[] = [];
-		for (let i = 0; i < 6; i++) statuses.push((await client().signIn(w.users.lead.email, 'wrong-' + i)).status);
+		for (let i = 0; i < 6; i++)
+			statuses.push((await client().signIn(w.users.lead.email, 'wrong-' + i)).status);
 		expect(statuses).toEqual([400, 400, 400, 400, 400, 429]);
 		const blocked = await client().signIn(w.users.lead.email, TEST_PASSWORD);
 		expect(blocked.status).toBe(429);
@@ -94,7 +102,8 @@ describe('signing in', () => {
 	it('throttles one address that tries many accounts', async () => {
 		const c = client();
 		const statuses: number[] = [];
-		for (let i = 0; i < 21; i++) statuses.push((await c.signIn(`guess${i}@test.example`, 'x')).status);
+		for (let i = 0; i < 21; i++)
+			statuses.push((await c.signIn(`guess${i}@test.example`, 'x')).status);
 		expect(statuses.slice(0, 20).every((s) => s === 400)).toBe(true);
 		expect(statuses[20]).toBe(429);
 	});
@@ -135,10 +144,22 @@ describe('guards', () => {
 		await c.signIn(a.users.lead.email, TEST_PASSWORD);
 		expect((await c.get('/team', 'text/html')).status).toBe(200);
 		const email = `new-${Date.now()}@test.example`;
-		const ok = await c.form('/team?/invite', { name: 'New Tech', email, role: 'technician', password: 'long-enough-password' });
+		const ok = await c.form('/team?/invite', {
+			name: 'New Tech',
+			email,
+			role: 'technician',
+			password: 'long-enough-password'
+		});
 		expect(ok.status).toBe(200);
-		expect(await User.count({ where: { email, workshopId: a.workshop.id, role: 'technician' } })).toBe(1);
-		const no = await c.form('/team?/invite', { name: 'X', email: 'x' + email, role: 'owner', password: 'long-enough-password' });
+		expect(
+			await User.count({ where: { email, workshopId: a.workshop.id, role: 'technician' } })
+		).toBe(1);
+		const no = await c.form('/team?/invite', {
+			name: 'X',
+			email: 'x' + email,
+			role: 'owner',
+			password: 'long-enough-password'
+		});
 		expect(no.status).toBe(403);
 	});
 
@@ -153,10 +174,15 @@ describe('guards', () => {
 	});
 
 	it('lists only assigned jobs for a technician and the whole workshop for a lead', async () => {
-		const other = await jobs.create(b.users.lead.actor, { complaint: 'Unassigned', assigneeId: b.users.apprentice.id });
+		const other = await jobs.create(b.users.lead.actor, {
+			complaint: 'Unassigned',
+			assigneeId: b.users.apprentice.id
+		});
 		const tech = client();
 		await tech.signIn(b.users.technician.email, TEST_PASSWORD);
-		const mine = (await (await tech.get('/api/jobs')).json()).items.map((j: { id: string }) => j.id);
+		const mine = (await (await tech.get('/api/jobs')).json()).items.map(
+			(j: { id: string }) => j.id
+		);
 		expect(mine).toEqual([jobB]);
 		expect((await tech.get(`/api/jobs/${other.id}`)).status).toBe(404);
 		const lead = client();

@@ -13,7 +13,11 @@ export async function setup(project: TestProject) {
 	Object.assign(process.env, db.env);
 	await migrate();
 	buildIfNeeded();
-	const s = await serve(await freePort(4200), { ...db.env, ADDRESS_HEADER: 'x-forwarded-for' }, 'ignore');
+	const s = await serve(
+		await freePort(4200),
+		{ ...db.env, ADDRESS_HEADER: 'x-forwarded-for' },
+		'ignore'
+	);
 	child = s.child;
 	project.provide('dbEnv', db.env);
 	project.provide('baseURL', s.url);

@@ -8,7 +8,10 @@ async function tables(): Promise<string[]> {
 		'SELECT table_name AS t FROM information_schema.tables WHERE table_schema = DATABASE()',
 		{ type: QueryTypes.SELECT }
 	);
-	return rows.map((r) => r.t).filter((t) => t !== 'sequelize_meta').sort();
+	return rows
+		.map((r) => r.t)
+		.filter((t) => t !== 'sequelize_meta')
+		.sort();
 }
 
 describe('migrations', () => {

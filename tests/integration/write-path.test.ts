@@ -13,7 +13,9 @@ beforeAll(async () => {
 });
 
 const seqs = async (workshopId: string) =>
-	(await Change.findAll({ where: { workshopId }, order: [['seq', 'ASC']] })).map((c) => Number(c.seq));
+	(await Change.findAll({ where: { workshopId }, order: [['seq', 'ASC']] })).map((c) =>
+		Number(c.seq)
+	);
 
 describe('the one write path', () => {
 	it('creates a record at version 1 with an audit row per field and one change row', async () => {
@@ -31,9 +33,14 @@ describe('the one write path', () => {
 	it('bumps the version on update and audits old and new values of the changed field only', async () => {
 		const actor = ws.users.lead.actor;
 		const rec = await customers.create(actor, { name: 'Alma Ridgeby', phone: '0100 555 0111' });
-		const next = await customers.update(actor, rec.id as string, 1, { phone: '0100 555 0112', name: 'Alma Ridgeby' });
+		const next = await customers.update(actor, rec.id as string, 1, {
+			phone: '0100 555 0112',
+			name: 'Alma Ridgeby'
+		});
 		expect(next.version).toBe(2);
-		const rows = await AuditEntry.findAll({ where: { entityId: rec.id as string, action: 'update' } });
+		const rows = await AuditEntry.findAll({
+			where: { entityId: rec.id as string, action: 'update' }
+		});
 		expect(rows).toHaveLength(1);
 		expect(rows[0].field).toBe('phone');
 		expect(JSON.parse(rows[0].oldValue!)).toBe('0100 555 0111');
@@ -46,14 +53,21 @@ describe('the one write path', () => {
 		const actor = ws.users.lead.actor;
 		const rec = await customers.create(actor, { name: 'Bram Tully' });
 		await customers.update(actor, rec.id as string, 1, { name: 'Bram Tully-Ashe' });
-		const err = await customers.update(actor, rec.id as string, 1, { name: 'Other' }).catch((e) => e);
+		const err = await customers
+			.update(actor, rec.id as string, 1, { name: 'Other' })
+			.catch((e) => e);
 		expect(err).toBeInstanceOf(StaleVersionError);
-		expect((err as StaleVersionError).current).toMatchObject({ version: 2, name: 'Bram Tully-Ashe' });
+		expect((err as StaleVersionError).current).toMatchObject({
+			version: 2,
+			name: 'Bram Tully-Ashe'
+		});
 	});
 
 	it('rejects invalid input naming the field, and writes nothing', async () => {
 		const before = await seqs(ws.workshop.id);
-		const err = await customers.create(ws.users.lead.actor, { name: '', email: 'nope' }).catch((e) => e);
+		const err = await customers
+			.create(ws.users.lead.actor, { name: '', email: 'nope' })
+			.catch((e) => e);
 		expect(err).toBeInstanceOf(ValidationError);
 		expect(Object.keys((err as ValidationError).fields).sort()).toEqual(['email', 'name']);
 		expect(await seqs(ws.workshop.id)).toEqual(before);
@@ -64,7 +78,11 @@ describe('the one write path', () => {
 		const id = uuidv7();
 		await expect(
 			db().transaction(async (t) => {
-				await customers.create(ws.users.lead.actor, { name: 'Rolled Back' }, { id, transaction: t });
+				await customers.create(
+					ws.users.lead.actor,
+					{ name: 'Rolled Back' },
+					{ id, transaction: t }
+				);
 				throw new Error('boom');
 			})
 		).rejects.toThrow('boom');
@@ -109,8 +127,12 @@ describe('the one write path', () => {
 	it('keeps workshops apart: another workshop’s record is not found', async () => {
 		const other = await makeWorkshop('Other');
 		const rec = await customers.create(other.users.lead.actor, { name: 'Not yours' });
-		await expect(customers.read(ws.users.lead.actor, rec.id as string)).rejects.toMatchObject({ status: 404 });
-		await expect(customers.update(ws.users.lead.actor, rec.id as string, 1, { name: 'x' })).rejects.toMatchObject({
+		await expect(customers.read(ws.users.lead.actor, rec.id as string)).rejects.toMatchObject({
+			status: 404
+		});
+		await expect(
+			customers.update(ws.users.lead.actor, rec.id as string, 1, { name: 'x' })
+		).rejects.toMatchObject({
 			status: 404
 		});
 	});

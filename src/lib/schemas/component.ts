@@ -36,7 +36,14 @@ export const componentCreate = z.object({
 });
 export const componentPatch = componentCreate.partial();
 
-export const QUANTITIES = ['resistance', 'voltage', 'voltage_drop', 'current', 'spark', 'visual'] as const;
+export const QUANTITIES = [
+	'resistance',
+	'voltage',
+	'voltage_drop',
+	'current',
+	'spark',
+	'visual'
+] as const;
 export const CONDITIONS = ['key_off', 'key_on', 'cranking', 'idle', 'under_load'] as const;
 
 export const band = z.object({

@@ -17,7 +17,10 @@ export class AppError extends Error {
 
 /** 400 with per-field messages (`fields` maps a dotted path to its first message). */
 export class ValidationError extends AppError {
-	constructor(readonly fields: Record<string, string>, message = 'Some fields need attention') {
+	constructor(
+		readonly fields: Record<string, string>,
+		message = 'Some fields need attention'
+	) {
 		super(400, 'invalid', message, { fields });
 	}
 	static fromZod(err: ZodError, prefix = ''): ValidationError {

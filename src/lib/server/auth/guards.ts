@@ -18,17 +18,22 @@ export function requireUser(locals: App.Locals): SessionUser {
 /** API: the signed-in user holding one of `roles`, or 401 / 403. */
 export function requireRole(locals: App.Locals, roles: readonly Role[]): SessionUser {
 	const user = requireUser(locals);
-	if (!roles.includes(user.role)) throw new AppError(403, 'forbidden', 'Your role does not allow this');
+	if (!roles.includes(user.role))
+		throw new AppError(403, 'forbidden', 'Your role does not allow this');
 	return user;
 }
 
 /** Pages and actions: redirect a signed-out visitor to sign-in; 403 for a missing role. */
-export function guardPage(event: Pick<RequestEvent, 'locals' | 'url'>, roles?: readonly Role[]): SessionUser {
+export function guardPage(
+	event: Pick<RequestEvent, 'locals' | 'url'>,
+	roles?: readonly Role[]
+): SessionUser {
 	const user = event.locals.user;
 	if (!user) {
 		const next = event.url.pathname + event.url.search;
 		redirect(303, `/sign-in?next=${encodeURIComponent(next)}`);
 	}
-	if (roles && !roles.includes(user.role)) error(403, { message: 'This page is for workshop leads and owners.', code: 'forbidden' });
+	if (roles && !roles.includes(user.role))
+		error(403, { message: 'This page is for workshop leads and owners.', code: 'forbidden' });
 	return user;
 }

@@ -38,7 +38,11 @@ export const sessionAdapter: Adapter = {
 		return (await Session.findAll({ where: { userId } })).map(toDbSession);
 	},
 	async setSession(session) {
-		await Session.create({ id: session.id, userId: session.userId as string, expiresAt: session.expiresAt });
+		await Session.create({
+			id: session.id,
+			userId: session.userId as string,
+			expiresAt: session.expiresAt
+		});
 	},
 	async updateSessionExpiration(sessionId, expiresAt) {
 		await Session.update({ expiresAt }, { where: { id: sessionId } });

@@ -32,7 +32,8 @@ export async function readSession(
 		cookies.set(lucia.sessionCookieName, '', cookieOptions(url));
 		return { user: null, sessionId: null };
 	}
-	if (session.fresh) cookies.set(lucia.sessionCookieName, session.id, cookieOptions(url, session.expiresAt));
+	if (session.fresh)
+		cookies.set(lucia.sessionCookieName, session.id, cookieOptions(url, session.expiresAt));
 	return { user: user as SessionUser, sessionId: session.id };
 }
 

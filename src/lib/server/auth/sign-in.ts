@@ -12,7 +12,11 @@ export type SignInResult =
 	| { ok: true; userId: string }
 	| { ok: false; status: 400 | 429; message: string; retryAfter?: number };
 
-export async function checkCredentials(email: string, password: string, address: string): Promise<SignInResult> {
+export async function checkCredentials(
+	email: string,
+	password: string,
+	address: string
+): Promise<SignInResult> {
 	const wait = await retryAfter(email, address);
 	if (wait > 0) {
 		return { ok: false, status: 429, retryAfter: wait, message: tooMany(wait) };

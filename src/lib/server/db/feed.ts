@@ -48,7 +48,11 @@ export async function nextSeq(t: Transaction, workshopId: string, count = 1): Pr
 }
 
 /** Append one change row; returns its seq. */
-export async function appendChange(t: Transaction, workshopId: string, c: ChangeInput): Promise<number> {
+export async function appendChange(
+	t: Transaction,
+	workshopId: string,
+	c: ChangeInput
+): Promise<number> {
 	const seq = await nextSeq(t, workshopId);
 	await db().query(
 		`INSERT INTO changes (workshop_id, seq, entity, entity_id, version, op, job_id, audience, record, at)

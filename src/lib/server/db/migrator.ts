@@ -31,7 +31,8 @@ export function createMigrator(sequelize: Sequelize) {
 	return new Umzug<MigrationContext>({
 		migrations: listMigrationFiles().map((file) => ({
 			name: file.replace(/\.(ts|js)$/, ''),
-			up: async ({ context }) => ((await import(pathToFileURL(path.join(dir, file)).href)) as MigrationModule).up(context),
+			up: async ({ context }) =>
+				((await import(pathToFileURL(path.join(dir, file)).href)) as MigrationModule).up(context),
 			down: async ({ context }) =>
 				((await import(pathToFileURL(path.join(dir, file)).href)) as MigrationModule).down(context)
 		})),

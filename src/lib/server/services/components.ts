@@ -5,8 +5,23 @@ import { db } from '../db';
 import { Component, SpecSheet } from '../db/models';
 import { defineAggregate } from './write-path';
 
-const COMPONENT_FIELDS = ['partNumber', 'kind', 'description', 'fitment', 'cautions', 'positions'] as const;
-const SHEET_FIELDS = ['componentId', 'sheetVersion', 'state', 'checks', 'source', 'approvedBy', 'approvedAt'] as const;
+const COMPONENT_FIELDS = [
+	'partNumber',
+	'kind',
+	'description',
+	'fitment',
+	'cautions',
+	'positions'
+] as const;
+const SHEET_FIELDS = [
+	'componentId',
+	'sheetVersion',
+	'state',
+	'checks',
+	'source',
+	'approvedBy',
+	'approvedAt'
+] as const;
 
 export const components = defineAggregate({
 	entity: 'component',
@@ -29,7 +44,11 @@ export const sheets = defineAggregate({
 	prepareCreate: async (actor, fields, t) => {
 		const [row] = await db().query<{ n: number | null }>(
 			'SELECT MAX(sheet_version) AS n FROM spec_sheets WHERE component_id = ? AND workshop_id = ? FOR UPDATE',
-			{ replacements: [fields.componentId, actor.workshopId], transaction: t, type: QueryTypes.SELECT }
+			{
+				replacements: [fields.componentId, actor.workshopId],
+				transaction: t,
+				type: QueryTypes.SELECT
+			}
 		);
 		return { ...fields, sheetVersion: Number(row?.n ?? 0) + 1, state: 'draft' };
 	},

@@ -58,7 +58,10 @@ export async function listOpen(actor: Actor) {
 		order: [['number', 'DESC']],
 		limit: 200
 	});
-	return withParties(actor, rows.map((r) => jobs.toRecord(r as never)));
+	return withParties(
+		actor,
+		rows.map((r) => jobs.toRecord(r as never))
+	);
 }
 
 /** One job with its customer and vehicle; 404 for another workshop or an unassigned job. */
@@ -79,7 +82,15 @@ async function withParties(actor: Actor, list: Record<string, unknown>[]) {
 	const v = new Map(
 		vehicles.map((x) => [
 			x.id,
-			{ id: x.id, make: x.make, model: x.model, year: x.year, plate: x.plate, vin: x.vin, hybrid: Boolean(x.hybrid) }
+			{
+				id: x.id,
+				make: x.make,
+				model: x.model,
+				year: x.year,
+				plate: x.plate,
+				vin: x.vin,
+				hybrid: Boolean(x.hybrid)
+			}
 		])
 	);
 	return list.map((j) => ({

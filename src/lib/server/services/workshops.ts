@@ -9,7 +9,10 @@ import { ValidationError } from '../errors';
 import type { Actor } from '../auth/types';
 
 export const newUser = z.object({
-	email: z.email('Enter an e-mail address').max(254).transform((v) => v.toLowerCase()),
+	email: z
+		.email('Enter an e-mail address')
+		.max(254)
+		.transform((v) => v.toLowerCase()),
 	name: z.string().trim().min(1, 'Enter a name').max(120),
 	role: z.enum(ROLES),
 	password: z.string().min(12, 'At least 12 characters').max(200)
@@ -28,7 +31,12 @@ export async function createWorkshop(name: string, id: string = uuidv7()) {
 }
 
 /** Add a user to a workshop (argon2id hash); `by` is who did it, for the audit. */
-export async function createUser(workshopId: string, input: unknown, by: Actor | null = null, id = uuidv7()) {
+export async function createUser(
+	workshopId: string,
+	input: unknown,
+	by: Actor | null = null,
+	id = uuidv7()
+) {
 	const r = newUser.safeParse(input);
 	if (!r.success) throw ValidationError.fromZod(r.error);
 	const passwordHash = await hashPassword(r.data.password);
@@ -38,16 +46,36 @@ export async function createUser(workshopId: string, input: unknown, by: Actor |
 			{ transaction: t }
 		);
 		const actor = by ?? { userId: id, workshopId, role: r.data.role as Role };
-		await writeAudit(t, actor, 'user', id, 'create', [
-			{ field: 'email', old: null, new: u.email },
-			{ field: 'role', old: null, new: u.role }
-		], null);
+		await writeAudit(
+			t,
+			actor,
+			'user',
+			id,
+			'create',
+			[
+				{ field: 'email', old: null, new: u.email },
+				{ field: 'role', old: null, new: u.role }
+			],
+			null
+		);
 		return u;
 	});
 }
 
 /** The workshop's users, for the lead's page. */
 export async function listUsers(workshopId: string) {
-	const rows = await User.findAll({ where: { workshopId }, order: [['role', 'DESC'], ['name', 'ASC']] });
-	return rows.map((u) => ({ id: u.id, name: u.name, email: u.email, role: u.role, active: u.active }));
+	const rows = await User.findAll({
+		where: { workshopId },
+		order: [
+			['role', 'DESC'],
+			['name', 'ASC']
+		]
+	});
+	return rows.map((u) => ({
+		id: u.id,
+		name: u.name,
+		email: u.email,
+		role: u.role,
+		active: u.active
+	}));
 }

@@ -40,7 +40,11 @@ export type AggregateDef<C extends z.ZodType, P extends z.ZodType> = {
 	/** The public record sent in the change feed and the API (plain JSON). */
 	toRecord: (row: Row) => Record<string, unknown>;
 	/** Fill server-side fields (e.g. a job number) before a create, inside the transaction. */
-	prepareCreate?: (actor: Actor, fields: Record<string, unknown>, t: Transaction) => Promise<Record<string, unknown>>;
+	prepareCreate?: (
+		actor: Actor,
+		fields: Record<string, unknown>,
+		t: Transaction
+	) => Promise<Record<string, unknown>>;
 	/** The job a record belongs to, for pull scoping (null: workshop-wide). */
 	jobIdOf?: (row: Row) => string | null;
 };
@@ -76,7 +80,14 @@ export function defineAggregate<C extends z.ZodType, P extends z.ZodType>(def: A
 		return row;
 	}
 
-	async function record(actor: Actor, row: Row, action: string, rows: AuditRow[], t: Transaction, o: WriteOptions) {
+	async function record(
+		actor: Actor,
+		row: Row,
+		action: string,
+		rows: AuditRow[],
+		t: Transaction,
+		o: WriteOptions
+	) {
 		await writeAudit(t, actor, def.entity, row.id, action, rows, o.opId ?? null);
 		await appendChange(t, actor.workshopId, {
 			entity: def.entity,
@@ -139,8 +150,17 @@ export function defineAggregate<C extends z.ZodType, P extends z.ZodType>(def: A
 		},
 
 		/** Change fields the caller saw at `baseVersion`; 409 when the record moved on. */
-		async update(actor: Actor, id: string, baseVersion: number, input: unknown, o: WriteOptions = {}) {
-			const fields = { ...(parse(def.patchSchema, input) as Record<string, unknown>), ...o.serverFields };
+		async update(
+			actor: Actor,
+			id: string,
+			baseVersion: number,
+			input: unknown,
+			o: WriteOptions = {}
+		) {
+			const fields = {
+				...(parse(def.patchSchema, input) as Record<string, unknown>),
+				...o.serverFields
+			};
 			return inTransaction(o.transaction, async (t) => {
 				const row = await lockRow(actor, id, t);
 				if (row.deletedAt) throw new NotFoundError();
@@ -171,7 +191,11 @@ export function defineAggregate<C extends z.ZodType, P extends z.ZodType>(def: A
 				const row = await lockRow(actor, id, t);
 				if (row.deletedAt) return def.toRecord(row);
 				if (row.version !== baseVersion) throw new StaleVersionError(def.toRecord(row));
-				row.set({ version: row.version + 1, deletedAt: new Date(), updatedBy: actor.userId } as never);
+				row.set({
+					version: row.version + 1,
+					deletedAt: new Date(),
+					updatedBy: actor.userId
+				} as never);
 				await row.save({ transaction: t });
 				await record(actor, row, 'delete', [], t, o);
 				return def.toRecord(row);

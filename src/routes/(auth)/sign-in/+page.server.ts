@@ -8,7 +8,8 @@ const form = z.object({
 	password: z.string().min(1, 'Enter your password').max(200)
 });
 
-const safeNext = (n: string | null) => (n && n.startsWith('/') && !n.startsWith('//') ? n : '/home');
+const safeNext = (n: string | null) =>
+	n && n.startsWith('/') && !n.startsWith('//') ? n : '/home';
 
 export function load({ locals, url }) {
 	if (locals.user) redirect(303, safeNext(url.searchParams.get('next')));
@@ -23,9 +24,18 @@ export const actions = {
 			const fields = Object.fromEntries(parsed.error.issues.map((i) => [i.path[0], i.message]));
 			return fail(400, { email, fields, message: null });
 		}
-		const result = await checkCredentials(parsed.data.email, parsed.data.password, getClientAddress());
+		const result = await checkCredentials(
+			parsed.data.email,
+			parsed.data.password,
+			getClientAddress()
+		);
 		if (!result.ok) {
-			return fail(result.status, { email, fields: {}, message: result.message, retryAfter: result.retryAfter });
+			return fail(result.status, {
+				email,
+				fields: {},
+				message: result.message,
+				retryAfter: result.retryAfter
+			});
 		}
 		if (locals.sessionId) {
 			const { endSession } = await import('$lib/server/auth/session');

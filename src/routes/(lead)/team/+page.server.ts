@@ -15,7 +15,10 @@ export const actions = {
 		const data = Object.fromEntries(await event.request.formData()) as Record<string, string>;
 		const keep = { name: data.name ?? '', email: data.email ?? '', role: data.role ?? '' };
 		if (user.role === 'lead' && !['technician', 'apprentice'].includes(data.role)) {
-			return fail(403, { ...keep, fields: { role: 'Leads invite technicians and apprentices only' } });
+			return fail(403, {
+				...keep,
+				fields: { role: 'Leads invite technicians and apprentices only' }
+			});
 		}
 		try {
 			await createUser(user.workshopId, data, actorOf(user));

@@ -3,12 +3,7 @@
  * strings (native UUID column); `field_versions` is JSON text mapping field → the record
  * version that last changed it (the server's per-field merge state, DESIGN §5).
  */
-import {
-	DataTypes,
-	Model,
-	type CreationOptional,
-	type Sequelize
-} from 'sequelize';
+import { DataTypes, Model, type CreationOptional, type Sequelize } from 'sequelize';
 import { COMPONENT_KINDS } from '../../../schemas/component';
 import { JOB_STATUSES, type JobStatus } from '../../../schemas/job';
 
@@ -87,7 +82,6 @@ export class Customer extends Model {
 	declare createdAt: CreationOptional<Date>;
 	declare updatedAt: CreationOptional<Date>;
 }
-
 
 export type ComponentKind = (typeof COMPONENT_KINDS)[number];
 export type { JobStatus };
@@ -175,12 +169,24 @@ export type { Synced };
 
 // Getters, not shared objects: Sequelize writes into each attribute definition it is given.
 const a = {
-	get uuidPk() { return { type: DataTypes.UUID, primaryKey: true }; },
-	get uuid() { return { type: DataTypes.UUID, allowNull: false }; },
-	get uuidNull() { return { type: DataTypes.UUID, allowNull: true }; },
-	get date() { return { type: DataTypes.DATE(3), allowNull: false }; },
-	get dateNull() { return { type: DataTypes.DATE(3), allowNull: true }; },
-	get text() { return { type: DataTypes.TEXT('long'), allowNull: true }; }
+	get uuidPk() {
+		return { type: DataTypes.UUID, primaryKey: true };
+	},
+	get uuid() {
+		return { type: DataTypes.UUID, allowNull: false };
+	},
+	get uuidNull() {
+		return { type: DataTypes.UUID, allowNull: true };
+	},
+	get date() {
+		return { type: DataTypes.DATE(3), allowNull: false };
+	},
+	get dateNull() {
+		return { type: DataTypes.DATE(3), allowNull: true };
+	},
+	get text() {
+		return { type: DataTypes.TEXT('long'), allowNull: true };
+	}
 };
 const str = (n: number, allowNull = false) => ({ type: DataTypes.STRING(n), allowNull });
 
@@ -213,10 +219,7 @@ const jsonText = (field: string) => ({
 /** Register every model on `s`. */
 export function initModels(s: Sequelize): void {
 	const base = { sequelize: s, underscored: true };
-	Workshop.init(
-		{ id: a.uuidPk, name: str(120) },
-		{ ...base, tableName: 'workshops' }
-	);
+	Workshop.init({ id: a.uuidPk, name: str(120) }, { ...base, tableName: 'workshops' });
 	User.init(
 		{
 			id: a.uuidPk,
