@@ -102,6 +102,8 @@ export function defineAggregate<C extends z.ZodType, P extends z.ZodType>(def: A
 	return {
 		entity: def.entity,
 		toRecord: def.toRecord,
+		/** The definition, for the sync service (which merges ops on the same rows). */
+		def,
 
 		/** Read one live record of the actor's workshop (404 otherwise). */
 		async read(actor: Actor, id: string, t?: Transaction) {
