@@ -1,9 +1,46 @@
 import { sveltekit } from '@sveltejs/kit/vite';
 import tailwindcss from '@tailwindcss/vite';
+import { SvelteKitPWA } from '@vite-pwa/sveltekit';
 import { defineConfig } from 'vitest/config';
 
 export default defineConfig({
-	plugins: [tailwindcss(), sveltekit()],
+	plugins: [
+		tailwindcss(),
+		sveltekit(),
+		SvelteKitPWA({
+			strategies: 'generateSW',
+			registerType: 'prompt',
+			injectRegister: false,
+			manifest: {
+				name: 'Fieldbench',
+				short_name: 'Fieldbench',
+				description: 'Log electrical component tests on a phone, offline, and sync them to the workshop.',
+				start_url: '/home',
+				scope: '/',
+				display: 'standalone',
+				orientation: 'portrait',
+				background_color: '#fbfaf6',
+				theme_color: '#0b1f2a',
+				icons: [
+					{ src: '/icons/icon-192.png', sizes: '192x192', type: 'image/png', purpose: 'any' },
+					{ src: '/icons/icon-512.png', sizes: '512x512', type: 'image/png', purpose: 'any' },
+					{ src: '/icons/maskable-512.png', sizes: '512x512', type: 'image/png', purpose: 'maskable' }
+				]
+			},
+			workbox: {
+				globPatterns: [
+					'client/**/*.{js,css,ico,png,svg,webp,webmanifest,woff,woff2}',
+					'prerendered/**/*.{html,json}'
+				],
+				// Navigations with no signal get the app shell; the client router then renders
+				// the (app) screen for the URL from IndexedDB.
+				navigateFallback: '/shell',
+				navigateFallbackDenylist: [/^\/api\//],
+				clientsClaim: true,
+				skipWaiting: false
+			}
+		})
+	],
 	server: { host: '127.0.0.1' },
 	test: {
 		projects: [

@@ -1,3 +1,4 @@
+/// <reference types="vite-plugin-pwa/client" />
 // See https://svelte.dev/docs/kit/types#app.d.ts
 import type { SessionUser } from '$lib/server/auth/types';
 

@@ -31,11 +31,18 @@ export function buildIfNeeded(force = false): boolean {
 		Math.max(...INPUTS.map((p) => newest(path.join(ROOT, p)))) > statSync(STAMP).mtimeMs;
 	if (!stale) return false;
 	console.log('Building the app…');
-	const r = spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], {
-		cwd: ROOT,
-		stdio: 'inherit'
-	});
-	if (r.status !== 0) throw new Error('vite build failed');
+	for (let attempt = 0; ; attempt++) {
+		const r = spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: ROOT, encoding: 'utf8' });
+		process.stdout.write(r.stdout ?? '');
+		process.stderr.write(r.stderr ?? '');
+		if (r.status === 0) break;
+		// Another build of this checkout is running (e.g. a second test runner): wait for it.
+		if (/another Vite build process/i.test(`${r.stdout}${r.stderr}`) && attempt < 60) {
+			spawnSync('sleep', ['5']);
+			continue;
+		}
+		throw new Error('vite build failed');
+	}
 	writeFileSync(STAMP, new Date().toISOString());
 	return true;
 }

@@ -2,14 +2,14 @@
 import type { ChildProcess } from 'node:child_process';
 import type { TestProject } from 'vitest/node';
 import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../../scripts/lib/app';
-import { freshDatabase, stopIfStarted } from '../helpers/database';
+import { finish, freshDatabase } from '../helpers/database';
 
 let child: ChildProcess | null = null;
-let started = false;
+let created: Awaited<ReturnType<typeof freshDatabase>> | null = null;
 
 export async function setup(project: TestProject) {
 	const db = await freshDatabase('fieldbench_e2e');
-	started = db.started;
+	created = db;
 	Object.assign(process.env, db.env);
 	await migrate();
 	const { seedDemo } = await import('../../src/lib/server/seed/demo');
@@ -25,5 +25,5 @@ export async function setup(project: TestProject) {
 
 export async function teardown() {
 	if (child) stopServe(child);
-	await stopIfStarted(started);
+	await finish(created);
 }

@@ -2,14 +2,14 @@
 import type { ChildProcess } from 'node:child_process';
 import type { TestProject } from 'vitest/node';
 import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../../scripts/lib/app';
-import { freshDatabase, stopIfStarted } from '../helpers/database';
+import { finish, freshDatabase } from '../helpers/database';
 
-let started = false;
+let created: Awaited<ReturnType<typeof freshDatabase>> | null = null;
 let child: ChildProcess | null = null;
 
 export async function setup(project: TestProject) {
 	const db = await freshDatabase('fieldbench_test');
-	started = db.started;
+	created = db;
 	Object.assign(process.env, db.env);
 	await migrate();
 	buildIfNeeded();
@@ -25,7 +25,7 @@ export async function setup(project: TestProject) {
 
 export async function teardown() {
 	if (child) stopServe(child);
-	await stopIfStarted(started);
+	await finish(created);
 }
 
 declare module 'vitest' {

@@ -137,3 +137,12 @@ describe('the one write path', () => {
 		});
 	});
 });
+
+describe('a partial update', () => {
+	it('changes only the fields sent, never resetting others to their defaults', async () => {
+		const actor = ws.users.lead.actor;
+		const rec = await customers.create(actor, { name: 'Keep Consent', reportConsent: true });
+		const next = await customers.update(actor, rec.id as string, 1, { phone: '0100 555 0177' });
+		expect(next).toMatchObject({ phone: '0100 555 0177', reportConsent: true, version: 2 });
+	});
+});

@@ -171,7 +171,9 @@ export const resultSchema = z
 		firstStatus: statusSchema.exclude(['duplicate']).optional(),
 		version: z.number().int().min(0).optional(),
 		conflictId: uuidSchema.optional(),
-		reason: reasonSchema.optional()
+		reason: reasonSchema.optional(),
+		/** Why, in words, for a rejection the technician should understand. */
+		message: z.string().max(500).optional()
 	})
 	.superRefine((r, ctx) => {
 		const status = r.status === 'duplicate' ? r.firstStatus : r.status;

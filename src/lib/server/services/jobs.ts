@@ -1,10 +1,34 @@
-/** Jobs on the one write path, plus the reads the technician's screens need. */
-import { Op, QueryTypes } from 'sequelize';
-import { jobCreate, jobPatch } from '../../schemas/job';
+/**
+ * Jobs on the one write path, with the role checks (access.ts), the server-side list, the
+ * status history (read from the audit rows of the `status` field) and the fault codes.
+ */
+import { Op, QueryTypes, type Transaction } from 'sequelize';
+import {
+	CODE_LISTS,
+	faultCode,
+	JOB_STATUSES,
+	jobCreate,
+	jobListQuery,
+	jobPatch,
+	jobStatusChange,
+	type CodeList,
+	type JobListQuery,
+	type JobStatus
+} from '../../schemas/job';
+import type { ListPage } from '../../schemas/common';
 import { db } from '../db';
-import { Customer, Job, Vehicle } from '../db/models';
+import { AuditEntry, Customer, Job, User, Vehicle, type FaultCode } from '../db/models';
 import type { Actor } from '../auth/types';
-import { NotFoundError } from '../errors';
+import { NotFoundError, StaleVersionError, ValidationError } from '../errors';
+import {
+	ASSIGNABLE_ROLES,
+	assertAssignee,
+	assertStatusChange,
+	loadJobForWrite,
+	mayOpenJob,
+	seesAllJobs
+} from './access';
+import { inOrder, likeOf, orderBy, pageOfIds, Where } from './list-sql';
 import { defineAggregate } from './write-path';
 
 const FIELDS = [
@@ -34,49 +58,313 @@ export const jobs = defineAggregate({
 		return { ...fields, number: Number(row?.n ?? 1000) + 1 };
 	},
 	jobIdOf: (r) => r.id,
+	afterWrite: async (actor, row, action, changed, t) => {
+		const moved = changed.find((c) => c.field === 'assigneeId');
+		if (action !== 'update' || !moved || moved.old === moved.new) return;
+		const { onJobReassigned } = await import('../sync/scope');
+		await onJobReassigned(
+			actor,
+			row.id,
+			(moved.old as string | null) ?? null,
+			(moved.new as string | null) ?? null,
+			t
+		);
+	},
 	toRecord: (r) => ({
 		id: r.id,
 		version: r.version,
-		...Object.fromEntries(FIELDS.map((f) => [f, r.get(f)])),
+		...Object.fromEntries(FIELDS.map((f) => [f, r.get(f) ?? null])),
 		deleted: r.deletedAt != null,
+		createdAt: r.get('createdAt'),
 		updatedAt: r.get('updatedAt')
 	})
 });
 
-const OPEN = { [Op.notIn]: ['closed'] };
-const seesAll = (a: Actor) => a.role === 'lead' || a.role === 'owner';
+/** A job as the API and the change feed send it. */
+export type JobRecord = {
+	id: string;
+	version: number;
+	number: number;
+	customerId: string | null;
+	vehicleId: string | null;
+	complaint: string;
+	location: string | null;
+	assigneeId: string | null;
+	status: JobStatus;
+	codesBefore: FaultCode[] | null;
+	codesAfter: FaultCode[] | null;
+	notes: string | null;
+	deleted: boolean;
+	createdAt: Date;
+	updatedAt: Date;
+};
+type Refs = { customerId?: string | null; vehicleId?: string | null };
+
+function parse<T>(schema: { safeParse: (v: unknown) => { success: boolean } }, input: unknown): T {
+	const r = schema.safeParse(input) as
+		{ success: true; data: T } | { success: false; error: never };
+	if (!r.success) throw ValidationError.fromZod(r.error);
+	return r.data;
+}
+
+/** The input as a plain object without the fields the server owns (the job number). */
+function ownFields(input: unknown): Record<string, unknown> {
+	if (!input || typeof input !== 'object' || Array.isArray(input)) return {};
+	const { number: _n, ...rest } = input as Record<string, unknown>;
+	return rest;
+}
+
+/** 400 when a customer or vehicle named on a job is not a live record of the workshop. */
+async function assertRefs(actor: Actor, f: { customerId?: unknown; vehicleId?: unknown }) {
+	const where = (id: unknown) => ({
+		where: { id: id as string, workshopId: actor.workshopId, deletedAt: { [Op.is]: null } }
+	});
+	const fields: Record<string, string> = {};
+	if (f.customerId && !(await Customer.count(where(f.customerId))))
+		fields.customerId = 'No such customer in this workshop';
+	if (f.vehicleId && !(await Vehicle.count(where(f.vehicleId))))
+		fields.vehicleId = 'No such vehicle in this workshop';
+	if (Object.keys(fields).length) throw new ValidationError(fields);
+}
+
+async function ownerOf(actor: Actor, vehicleId: string): Promise<string | null> {
+	const v = await Vehicle.findOne({ where: { id: vehicleId, workshopId: actor.workshopId } });
+	return v?.customerId ?? null;
+}
+
+/**
+ * Open a job. Technicians and apprentices open jobs assigned to themselves; leads and
+ * owners may assign any technician or apprentice (or no one). The number comes from the
+ * server; without a customer, the vehicle's owner is the job's customer.
+ */
+export async function addJob(actor: Actor, input: unknown) {
+	const fields = ownFields(input);
+	if (!seesAllJobs(actor) && !('assigneeId' in fields)) fields.assigneeId = actor.userId;
+	const parsed = parse<Refs & { assigneeId?: string | null; status: JobStatus }>(jobCreate, fields);
+	await assertAssignee(actor, parsed.assigneeId ?? null);
+	assertStatusChange(actor, 'open', parsed.status);
+	await assertRefs(actor, parsed);
+	if (parsed.vehicleId && !parsed.customerId)
+		fields.customerId = await ownerOf(actor, parsed.vehicleId);
+	return jobs.create(actor, fields);
+}
+
+/** Change a job the actor saw at `baseVersion`: 404 → 403 → 400 → 409. */
+export async function editJob(actor: Actor, id: string, baseVersion: number, input: unknown) {
+	const job = await loadJobForWrite(actor, id);
+	const fields = ownFields(input);
+	const patch = parse<Refs & { assigneeId?: string | null; status?: JobStatus }>(jobPatch, fields);
+	if ('assigneeId' in patch) await assertAssignee(actor, patch.assigneeId ?? null, job.assigneeId);
+	if (patch.status) assertStatusChange(actor, job.status, patch.status);
+	await assertRefs(actor, patch);
+	return jobs.update(actor, id, baseVersion, fields);
+}
+
+/** `{ status, baseVersion }`: move the job to another status (recorded with who and when). */
+export async function changeStatus(actor: Actor, id: string, input: unknown) {
+	const { status, baseVersion } = parse<{ status: JobStatus; baseVersion: number }>(
+		jobStatusChange,
+		input
+	);
+	return editJob(actor, id, baseVersion, { status });
+}
+
+/**
+ * Change one list of fault codes against the latest version of the job (adding or removing
+ * one code clashes with nothing, so a concurrent edit is retried once rather than refused).
+ */
+async function changeCodes(
+	actor: Actor,
+	id: string,
+	list: CodeList,
+	change: (codes: FaultCode[]) => FaultCode[]
+) {
+	const field = CODE_LISTS[list];
+	for (let attempt = 0; ; attempt++) {
+		const job = await loadJobForWrite(actor, id);
+		const codes = (job.get(field) as FaultCode[] | null) ?? [];
+		try {
+			return await jobs.update(actor, id, job.version, { [field]: change(codes) });
+		} catch (e) {
+			if (!(e instanceof StaleVersionError) || attempt > 0) throw e;
+		}
+	}
+}
+
+/** Add a fault code `{ code, text }` to the codes read before or after the work. */
+export async function addFaultCode(actor: Actor, id: string, list: CodeList, input: unknown) {
+	const code = parse<FaultCode>(faultCode, input);
+	return changeCodes(actor, id, list, (codes) => {
+		if (codes.some((c) => c.code === code.code && c.text === code.text)) return codes;
+		if (codes.length >= 50) throw new ValidationError({ code: 'At most 50 codes' });
+		return [...codes, code];
+	});
+}
+
+/** Remove the fault code at `index` of a list, if it still holds `code` there (or elsewhere). */
+export async function removeFaultCode(
+	actor: Actor,
+	id: string,
+	list: CodeList,
+	index: number,
+	code: string
+) {
+	return changeCodes(actor, id, list, (codes) => {
+		const at = codes[index]?.code === code ? index : codes.findIndex((c) => c.code === code);
+		return at < 0 ? codes : codes.filter((_, i) => i !== at);
+	});
+}
+
+/** A job of the actor's, for attaching a new customer or vehicle (400 naming `jobId` when not found). */
+export async function jobForAttach(actor: Actor, jobId: string, t: Transaction) {
+	try {
+		return await loadJobForWrite(actor, jobId, t);
+	} catch (e) {
+		if (e instanceof NotFoundError) throw new ValidationError({ jobId: 'No such job' });
+		throw e;
+	}
+}
+
+/** Put a customer or vehicle on a locked job, inside the caller's transaction. */
+export async function attachToJob(
+	actor: Actor,
+	job: Job,
+	patch: { customerId?: string; vehicleId?: string },
+	t: Transaction
+) {
+	return jobs.update(actor, job.id, job.version, patch, { transaction: t });
+}
 
 /** Open jobs the actor may see: assigned ones, or the whole workshop for leads and owners. */
 export async function listOpen(actor: Actor) {
-	const rows = await Job.findAll({
-		where: {
-			workshopId: actor.workshopId,
-			deletedAt: { [Op.is]: null },
-			status: OPEN,
-			...(seesAll(actor) ? {} : { assigneeId: actor.userId })
-		},
-		order: [['number', 'DESC']],
-		limit: 200
-	});
-	return withParties(
-		actor,
-		rows.map((r) => jobs.toRecord(r as never))
-	);
+	return (await searchJobs(actor, { pageSize: 100 })).items;
 }
 
-/** One job with its customer and vehicle; 404 for another workshop or an unassigned job. */
+/** One job with its customer, vehicle and assignee; 404 for another workshop or an unassigned job. */
 export async function readOne(actor: Actor, id: string) {
-	const job = (await jobs.read(actor, id)) as Record<string, unknown>;
-	if (!seesAll(actor) && job.assigneeId !== actor.userId) throw new NotFoundError('Job');
+	const job = (await jobs.read(actor, id)) as unknown as JobRecord;
+	if (!mayOpenJob(actor, job)) throw new NotFoundError('Job');
 	const [full] = await withParties(actor, [job]);
 	return full;
 }
 
-async function withParties(actor: Actor, list: Record<string, unknown>[]) {
-	const ids = (k: string) => [...new Set(list.map((j) => j[k]).filter(Boolean))] as string[];
-	const [customers, vehicles] = await Promise.all([
+/** Parse a list query (400 naming the parameter). */
+export function parseListQuery(input: unknown): JobListQuery {
+	return parse<JobListQuery>(jobListQuery, input);
+}
+
+const SORT_COLUMNS = {
+	number: 'j.number',
+	created: 'j.created_at',
+	updated: 'j.updated_at',
+	status: `FIELD(j.status, ${JOB_STATUSES.map((s) => `'${s}'`).join(', ')})`,
+	customer: 'c.name'
+};
+const FROM = `jobs j
+	LEFT JOIN customers c ON c.id = j.customer_id AND c.workshop_id = j.workshop_id
+	LEFT JOIN vehicles v ON v.id = j.vehicle_id AND v.workshop_id = j.workshop_id`;
+
+const nextDay = (day: string) =>
+	new Date(Date.parse(`${day}T00:00:00Z`) + 86_400_000).toISOString().slice(0, 10);
+
+function jobFilter(actor: Actor, q: JobListQuery): Where {
+	const where = new Where().and('j.workshop_id = ?', actor.workshopId).and('j.deleted_at IS NULL');
+	if (!seesAllJobs(actor)) where.and('j.assignee_id = ?', actor.userId);
+	if (q.status === 'active') where.and("j.status <> 'closed'");
+	else if (q.status !== 'all') where.and('j.status = ?', q.status);
+	if (q.assignee === 'me') where.and('j.assignee_id = ?', actor.userId);
+	else if (q.assignee === 'none') where.and('j.assignee_id IS NULL');
+	else if (q.assignee !== 'any') where.and('j.assignee_id = ?', q.assignee);
+	if (q.vehicle) where.and('j.vehicle_id = ?', q.vehicle);
+	if (q.customer) where.and('j.customer_id = ?', q.customer);
+	if (q.from) where.and('j.created_at >= ?', `${q.from} 00:00:00`);
+	if (q.to) where.and('j.created_at < ?', `${nextDay(q.to)} 00:00:00`);
+	if (q.q) {
+		const like = likeOf(q.q);
+		const number = /^(?:job\s*)?#?(\d{1,9})$/i.exec(q.q)?.[1];
+		where.and(
+			`(j.number = ? OR j.complaint LIKE ? OR j.location LIKE ? OR j.notes LIKE ? OR c.name LIKE ?
+			  OR REPLACE(v.plate, ' ', '') LIKE ? OR v.vin LIKE ? OR CONCAT_WS(' ', v.make, v.model) LIKE ?)`,
+			number ? Number(number) : -1,
+			like,
+			like,
+			like,
+			like,
+			likeOf(q.q.replace(/\s/g, '')),
+			like,
+			like
+		);
+	}
+	return where;
+}
+
+/**
+ * One page of the jobs the actor may see, matching the query (see `jobListQuery`); `q`
+ * matches the number, complaint, location, notes, customer name, plate, VIN, make and model.
+ */
+export async function searchJobs(actor: Actor, input: unknown): Promise<ListPage<JobRecord>> {
+	const q = parseListQuery(input);
+	const { ids, total } = await pageOfIds(
+		'j.id',
+		FROM,
+		jobFilter(actor, q),
+		orderBy(q.sort, SORT_COLUMNS, 'j.number'),
+		q.page,
+		q.pageSize
+	);
+	const rows = ids.length ? await Job.findAll({ where: { id: ids } }) : [];
+	const items = await withParties(
+		actor,
+		inOrder(ids, rows).map((r) => jobs.toRecord(r as never) as unknown as JobRecord)
+	);
+	return { items, total, page: q.page, pageSize: q.pageSize };
+}
+
+/** The status changes of a job, newest first: status, the one before, who and when. */
+export async function statusHistory(actor: Actor, id: string) {
+	await readOne(actor, id);
+	const rows = await AuditEntry.findAll({
+		where: { workshopId: actor.workshopId, entity: 'job', entityId: id, field: 'status' },
+		order: [['id', 'DESC']]
+	});
+	const names = await userNames(
+		actor,
+		rows.map((r) => r.userId)
+	);
+	const value = (v: string | null) => (v == null ? null : (JSON.parse(v) as JobStatus));
+	return rows.map((r) => ({
+		status: value(r.newValue),
+		from: value(r.oldValue),
+		at: r.at,
+		by: r.userId ? { id: r.userId, name: names.get(r.userId) ?? 'Former user' } : null,
+		deviceId: r.deviceId
+	}));
+}
+
+/** Technicians and apprentices of the workshop a job can be assigned to. */
+export async function listAssignable(actor: Actor) {
+	const rows = await User.findAll({
+		where: { workshopId: actor.workshopId, active: true, role: [...ASSIGNABLE_ROLES] },
+		order: [['name', 'ASC']]
+	});
+	return rows.map((u) => ({ id: u.id, name: u.name, role: u.role }));
+}
+
+async function userNames(actor: Actor, ids: (string | null)[]) {
+	const list = [...new Set(ids.filter((x): x is string => !!x))];
+	const users = list.length
+		? await User.findAll({ where: { id: list, workshopId: actor.workshopId } })
+		: [];
+	return new Map(users.map((u) => [u.id, u.name]));
+}
+
+async function withParties(actor: Actor, list: JobRecord[]) {
+	const ids = (k: 'customerId' | 'vehicleId' | 'assigneeId') =>
+		[...new Set(list.map((j) => j[k]).filter(Boolean))] as string[];
+	const [customers, vehicles, names] = await Promise.all([
 		Customer.findAll({ where: { workshopId: actor.workshopId, id: ids('customerId') } }),
-		Vehicle.findAll({ where: { workshopId: actor.workshopId, id: ids('vehicleId') } })
+		Vehicle.findAll({ where: { workshopId: actor.workshopId, id: ids('vehicleId') } }),
+		userNames(actor, ids('assigneeId'))
 	]);
 	const c = new Map(customers.map((x) => [x.id, { id: x.id, name: x.name, phone: x.phone }]));
 	const v = new Map(
@@ -95,7 +383,10 @@ async function withParties(actor: Actor, list: Record<string, unknown>[]) {
 	);
 	return list.map((j) => ({
 		...j,
-		customer: c.get(j.customerId as string) ?? null,
-		vehicle: v.get(j.vehicleId as string) ?? null
+		customer: (j.customerId && c.get(j.customerId)) || null,
+		vehicle: (j.vehicleId && v.get(j.vehicleId)) || null,
+		assignee: j.assigneeId
+			? { id: j.assigneeId, name: names.get(j.assigneeId) ?? 'Former user' }
+			: null
 	}));
 }

@@ -45,6 +45,14 @@ export type AggregateDef<C extends z.ZodType, P extends z.ZodType> = {
 		fields: Record<string, unknown>,
 		t: Transaction
 	) => Promise<Record<string, unknown>>;
+	/** Runs after each stored write, in its transaction, with the changed fields. */
+	afterWrite?: (
+		actor: Actor,
+		row: Row,
+		action: string,
+		changed: AuditRow[],
+		t: Transaction
+	) => Promise<void>;
 	/** The job a record belongs to, for pull scoping (null: workshop-wide). */
 	jobIdOf?: (row: Row) => string | null;
 };
@@ -61,6 +69,19 @@ function parse<S extends z.ZodType>(schema: S, input: unknown): z.output<S> {
 	const r = schema.safeParse(input);
 	if (!r.success) throw ValidationError.fromZod(r.error);
 	return r.data;
+}
+
+/**
+ * Parse a patch and keep only the fields the caller sent: zod's `.partial()` still fills
+ * `.default()`s, which would silently overwrite fields the caller never touched.
+ */
+export function parsePatch<S extends z.ZodType>(
+	schema: S,
+	input: unknown
+): Record<string, unknown> {
+	const out = parse(schema, input) as Record<string, unknown>;
+	const sent = input && typeof input === 'object' ? Object.keys(input) : [];
+	return Object.fromEntries(Object.entries(out).filter(([k]) => sent.includes(k)));
 }
 
 const json = (v: unknown) => (v === undefined ? null : JSON.stringify(v));
@@ -97,6 +118,7 @@ export function defineAggregate<C extends z.ZodType, P extends z.ZodType>(def: A
 			jobId: def.jobIdOf?.(row) ?? null,
 			record: def.toRecord(row)
 		});
+		await def.afterWrite?.(actor, row, action, rows, t);
 	}
 
 	return {
@@ -204,4 +226,70 @@ export function defineAggregate<C extends z.ZodType, P extends z.ZodType>(def: A
 			});
 		}
 	};
+}
+
+/** A merged sync op to store (see `src/lib/server/sync/mutable.ts`). */
+export type MergedWrite = {
+	id: string;
+	row: Row | null;
+	version: number;
+	deleted: boolean;
+	fieldVersions: Record<string, number>;
+	/** For a create: every field; for a patch: the changed fields only. */
+	fields: Record<string, unknown>;
+	changed: { field: string; old: unknown; new: unknown }[];
+	feed: 'upsert' | 'delete' | null;
+};
+
+/**
+ * Store the outcome of the sync merge for an aggregate — the same row, audit and change
+ * writes as `create`/`update`/`remove`, with the version and per-field versions the merge
+ * decided. Runs inside the caller's transaction (the batch's savepoint).
+ */
+export async function persistMerged(
+	agg: { def: AggregateDef<z.ZodType, z.ZodType> },
+	actor: Actor,
+	w: MergedWrite,
+	opId: string,
+	t: Transaction
+): Promise<Record<string, unknown>> {
+	const Model = agg.def.model as unknown as ModelStatic<Row>;
+	const common = {
+		version: w.version,
+		fieldVersions: JSON.stringify(w.fieldVersions),
+		updatedBy: actor.userId,
+		deviceId: actor.deviceId ?? null,
+		deviceTime: actor.deviceTime ?? null
+	};
+	let row = w.row;
+	if (!row) {
+		row = await Model.create(
+			{
+				...w.fields,
+				...common,
+				id: w.id,
+				workshopId: actor.workshopId,
+				deletedAt: null,
+				createdBy: actor.userId
+			} as never,
+			{ transaction: t }
+		);
+	} else if (w.feed) {
+		row.set({ ...w.fields, ...common, ...(w.deleted ? { deletedAt: new Date() } : {}) } as never);
+		await row.save({ transaction: t });
+	}
+	if (w.feed) {
+		const action = !w.row ? 'create' : w.deleted ? 'delete' : 'update';
+		await writeAudit(t, actor, agg.def.entity, row.id, action, w.changed, opId);
+		await appendChange(t, actor.workshopId, {
+			entity: agg.def.entity,
+			entityId: row.id,
+			version: row.version,
+			op: w.feed,
+			jobId: agg.def.jobIdOf?.(row) ?? null,
+			record: agg.def.toRecord(row)
+		});
+		await agg.def.afterWrite?.(actor, row, action, w.changed, t);
+	}
+	return agg.def.toRecord(row);
 }

@@ -6,6 +6,8 @@
 import { DataTypes, Model, type CreationOptional, type Sequelize } from 'sequelize';
 import { COMPONENT_KINDS } from '../../../schemas/component';
 import { JOB_STATUSES, type JobStatus } from '../../../schemas/job';
+import { initTest, Test } from './test';
+export { Test };
 
 export const ROLES = ['apprentice', 'technician', 'lead', 'owner'] as const;
 export type Role = (typeof ROLES)[number];
@@ -218,6 +220,7 @@ const jsonText = (field: string) => ({
 
 /** Register every model on `s`. */
 export function initModels(s: Sequelize): void {
+	initTest(s, syncAttrs);
 	const base = { sequelize: s, underscored: true };
 	Workshop.init({ id: a.uuidPk, name: str(120) }, { ...base, tableName: 'workshops' });
 	User.init(

@@ -1,0 +1,53 @@
+/** The `tests` table: one component tested on one job, with its pinned snapshot. */
+import { DataTypes, Model, type Sequelize } from 'sequelize';
+
+export class Test extends Model {
+	declare id: string;
+	declare workshopId: string;
+	declare jobId: string;
+	declare componentId: string | null;
+	declare sheetId: string | null;
+	declare sheetVersion: number | null;
+	declare partNumber: string | null;
+	declare position: string | null;
+	declare technicianId: string | null;
+	declare meter: Record<string, unknown> | null;
+	declare temperature: Record<string, unknown> | null;
+	declare state: 'in_progress' | 'done' | 'abandoned';
+	declare notes: string | null;
+	declare version: number;
+	declare fieldVersions: string;
+	declare deletedAt: Date | null;
+}
+
+const json = (field: string) => ({
+	type: DataTypes.TEXT,
+	allowNull: true,
+	get(this: Model) {
+		const raw = this.getDataValue(field as never) as string | null;
+		return raw == null ? null : JSON.parse(raw);
+	},
+	set(this: Model, v: unknown) {
+		this.setDataValue(field as never, (v == null ? null : JSON.stringify(v)) as never);
+	}
+});
+
+export function initTest(s: Sequelize, syncAttrs: () => Record<string, object>) {
+	Test.init(
+		{
+			...syncAttrs(),
+			jobId: { type: DataTypes.UUID, allowNull: false },
+			componentId: { type: DataTypes.UUID, allowNull: true },
+			sheetId: { type: DataTypes.UUID, allowNull: true },
+			sheetVersion: { type: DataTypes.INTEGER, allowNull: true },
+			partNumber: { type: DataTypes.STRING(60), allowNull: true },
+			position: { type: DataTypes.STRING(20), allowNull: true },
+			technicianId: { type: DataTypes.UUID, allowNull: true },
+			meter: json('meter'),
+			temperature: json('temperature'),
+			state: { type: DataTypes.ENUM('in_progress', 'done', 'abandoned'), allowNull: false, defaultValue: 'in_progress' },
+			notes: { type: DataTypes.TEXT, allowNull: true }
+		},
+		{ sequelize: s, underscored: true, tableName: 'tests' }
+	);
+}

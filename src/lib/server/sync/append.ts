@@ -1,0 +1,240 @@
+/**
+ * Append-only ops (readings, spark tests, swap tests, sign-offs) in bulk: one lookup of the
+ * tests and sheets they refer to, the server's own result for every reading (the same pure
+ * function the phone uses), one block of feed seqs, and one bulk INSERT per table — never a
+ * commit per row. The op id and seq live on the record's own row.
+ *
+ * This is the sync hot path (a push carries hundreds of readings): its statements go straight
+ * to the transaction's driver connection (`rawQuery`, `rawBatch`), the rows are fully built
+ * before the workshop's seq counter is locked, and that lock is held only for the INSERTs and
+ * the commit.
+ */
+import type { Transaction } from 'sequelize';
+import { evaluateReading, meterFor, sameResult, type CheckSpec, type TemperatureSnapshot } from '../../flow/reading';
+import { readingCreate, signoffCreate, sparkTestCreate, swapTestCreate } from '../../schemas/records';
+import type { Op, PushResult, Reason } from '../../sync/protocol';
+import { stringifyNumbers } from '../../sync/json';
+import type { Actor } from '../auth/types';
+import { nextSeq, rawBatch, rawQuery, sqlDateTime, WITH_IDS } from '../db/feed';
+import { APPEND_TABLES, type StoredAppendEntity } from './append-tables';
+
+type Ctx = { actor: Actor; t: Transaction };
+type TestRow = { id: string; job_id: string; assignee_id: string | null; technician_id: string | null; sheet_id: string | null; meter: string | null; temperature: string | null; deleted: number | bigint; checks: string | null };
+type MeterSetup = Parameters<typeof meterFor>[0];
+/**
+ * A test as the readings need it, its snapshot parsed once per push (and per range read on);
+ * `sheetChecks` are its pinned sheet's checks (undefined when that sheet is not found).
+ */
+type TestInfo = TestRow & {
+	meterSetup: MeterSetup;
+	tempSnap: TemperatureSnapshot;
+	meters: Map<string | null, ReturnType<typeof meterFor>>;
+	sheetChecks: CheckSpec[] | undefined;
+};
+const meterOf = (test: TestInfo, rangeLabel: string | null) => {
+	let m = test.meters.get(rangeLabel);
+	if (!m) test.meters.set(rangeLabel, (m = meterFor(test.meterSetup, rangeLabel)));
+	return m;
+};
+type Prepared = { op: Op; table: string; columns: Record<string, unknown>; mismatch?: { device: string; server: string } };
+
+const SCHEMAS = { reading: readingCreate, spark_test: sparkTestCreate, swap_test: swapTestCreate, signoff: signoffCreate };
+const isLead = (a: Actor) => a.role === 'lead' || a.role === 'owner';
+const reject = (op: Op, reason: Reason, message?: string) =>
+	({ opId: op.opId, status: 'rejected', reason, ...(message ? { message } : {}) }) as PushResult;
+
+/** The tests the ops refer to, with their job's assignee and their pinned sheet's checks. */
+async function loadTests(ids: string[], { actor, t }: Ctx) {
+	if (!ids.length) return new Map<string, TestInfo>();
+	const rows = await rawQuery<TestRow[]>(
+		t,
+		`SELECT t.id, t.job_id, j.assignee_id, t.technician_id, t.sheet_id, t.meter, t.temperature,
+		        (t.deleted_at IS NOT NULL) AS deleted, s.checks
+		 FROM tests t JOIN jobs j ON j.id = t.job_id
+		 LEFT JOIN spec_sheets s ON s.id = t.sheet_id AND s.workshop_id = ?
+		 WHERE t.id IN (?) AND t.workshop_id = ?`,
+		[actor.workshopId, ids, actor.workshopId]
+	);
+	const sheets = new Map<string, CheckSpec[]>();
+	return new Map(
+		rows.map((r) => {
+			if (r.sheet_id && r.checks != null && !sheets.has(r.sheet_id)) sheets.set(r.sheet_id, JSON.parse(r.checks));
+			const info: TestInfo = {
+				...r,
+				meterSetup: r.meter ? (JSON.parse(r.meter) as MeterSetup) : null,
+				meters: new Map(),
+				tempSnap: r.temperature ? (JSON.parse(r.temperature) as TemperatureSnapshot) : { mode: 'unknown' as const },
+				sheetChecks: r.sheet_id ? sheets.get(r.sheet_id) : undefined
+			};
+			return [r.id, info];
+		})
+	);
+}
+
+async function loadJobs(ids: string[], { actor, t }: Ctx) {
+	if (!ids.length) return new Map<string, string | null>();
+	const rows = await rawQuery<{ id: string; assignee_id: string | null }[]>(
+		t,
+		'SELECT id, assignee_id FROM jobs WHERE id IN (?) AND workshop_id = ? AND deleted_at IS NULL',
+		[ids, actor.workshopId]
+	);
+	return new Map(rows.map((r) => [r.id, r.assignee_id]));
+}
+
+/** Validate and prepare each op; returns a result for refused ops and a row for the rest. */
+async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> {
+	const parsed = ops.map((op) => {
+		if (op.entity === 'photo') return { op, error: 'Photos are not taken yet' };
+		const r = SCHEMAS[op.entity as StoredAppendEntity].safeParse(op.fields);
+		return r.success ? { op, f: r.data as Record<string, unknown> } : { op, error: r.error.issues[0].path.join('.') + ': ' + r.error.issues[0].message };
+	});
+	const ids = (k: string) => [...new Set(parsed.flatMap((p) => ('f' in p && p.f![k] ? [p.f![k] as string] : [])))];
+	const tests = await loadTests(ids('testId'), ctx);
+	const jobs = await loadJobs(ids('jobId'), ctx);
+	const mine = (assignee: string | null) => isLead(ctx.actor) || assignee === ctx.actor.userId;
+	return parsed.map((p): Prepared | PushResult => {
+		if (!('f' in p) || !p.f) return reject(p.op, 'invalid', (p as { error: string }).error);
+		const { op, f } = p;
+		const base = { workshop_id: ctx.actor.workshopId, id: op.entityId, op_id: op.opId, created_by: ctx.actor.userId, device_id: ctx.actor.deviceId, device_time: sqlDateTime(new Date(op.deviceTime)) };
+		if (op.entity === 'reading' || op.entity === 'signoff') {
+			const test = tests.get(f.testId as string);
+			if (!test || Number(test.deleted) || !mine(test.assignee_id)) return reject(op, 'not_found');
+			if (op.entity === 'signoff') {
+				if (!isLead(ctx.actor)) return reject(op, 'forbidden', 'Only a lead signs off');
+				return { op, table: 'signoffs', columns: { ...base, job_id: test.job_id, test_id: test.id, mode: f.mode, note: f.note ?? null } };
+			}
+			const checks = test.sheet_id ? test.sheetChecks : null;
+			const check = checks?.find((c) => c.key === f.checkKey);
+			if (checks && !check) return reject(op, 'invalid', `checkKey: no check ${f.checkKey} on the pinned sheet`);
+			const spec = check ?? { key: f.checkKey as string, quantity: 'resistance', unit: 'Ω', openOk: false, bands: [] };
+			const server = evaluateReading(spec, f.samples as never, meterOf(test, (f.rangeLabel as string | null | undefined) ?? null), test.tempSnap);
+			const device = f.deviceResult as { value: number | null; verdict: string } | null | undefined;
+			const mismatch = device != null && !sameResult(device as never, server);
+			return {
+				op,
+				table: 'readings',
+				columns: {
+					...base,
+					job_id: test.job_id,
+					test_id: test.id,
+					check_key: f.checkKey,
+					position: f.position ?? null,
+					samples: JSON.stringify(f.samples),
+					range_label: f.rangeLabel ?? null,
+					device_result: device ? toJson(device) : null,
+					server_result: toJson(server),
+					mismatch: mismatch ? 1 : 0
+				},
+				...(mismatch ? { mismatch: { device: String(device!.verdict), server: server.verdict } } : {})
+			};
+		}
+		if (!jobs.has(f.jobId as string) || !mine(jobs.get(f.jobId as string)!)) return reject(op, 'not_found');
+		const common = { ...base, job_id: f.jobId, test_id: f.testId ?? null, note: f.note ?? null };
+		if (op.entity === 'spark_test') {
+			return { op, table: 'spark_tests', columns: { ...common, position: f.position, gap_mm: f.gapMm, outcome: f.outcome } };
+		}
+		return {
+			op,
+			table: 'swap_tests',
+			columns: {
+				...common,
+				from_position: f.fromPosition,
+				to_position: f.toPosition,
+				before_counts: JSON.stringify(f.beforeCounts),
+				after_counts: JSON.stringify(f.afterCounts),
+				conclusion: f.conclusion
+			}
+		};
+	});
+}
+
+/** ±Infinity anywhere inside a plain JSON value (an OL reading is Infinity). */
+function hasInfinity(v: unknown): boolean {
+	if (typeof v === 'number') return v === Infinity || v === -Infinity;
+	if (v === null || typeof v !== 'object') return false;
+	if (Array.isArray(v)) return v.some(hasInfinity);
+	for (const k in v) if (hasInfinity((v as Record<string, unknown>)[k])) return true;
+	return false;
+}
+/** `stringifyNumbers`, through the native JSON.stringify when there is no ±Infinity (same text). */
+const toJson = (v: unknown) => (hasInfinity(v) ? stringifyNumbers(v) : JSON.stringify(v));
+
+/**
+ * The bulk INSERT of one table's prepared rows (the driver's batch: one statement, all rows),
+ * built before the seqs are known. Each row comes with its place among the applied ops;
+ * `run(first)` gives it seq `first + place` and sends the rows.
+ */
+function insertRows(table: string, rows: { place: number; columns: Record<string, unknown> }[], t: Transaction) {
+	const cols = ['seq', ...Object.keys(rows[0].columns)];
+	const sql = `INSERT INTO ${table} (${cols.join(', ')}, created_at) VALUES (${cols.map(() => '?').join(', ')}, UTC_TIMESTAMP(3))`;
+	const values = rows.map((r) => cols.map((c, i) => (i === 0 ? 0 : r.columns[c])));
+	return (first: number) => {
+		rows.forEach((r, k) => (values[k][0] = first + r.place));
+		return rawBatch(t, sql, values);
+	};
+}
+
+/**
+ * An id that is already stored (or repeated in this batch under another op id) is a no-op
+ * `applied` when it is the same record of the same workshop, else `id_conflict`
+ * (`not_found` for another workshop's record).
+ */
+async function refuseTakenIds(prepared: (Prepared | PushResult)[], { actor, t }: Ctx) {
+	const ids = prepared.flatMap((p) => ('table' in p ? [p.op.entityId] : []));
+	if (!ids.length) return prepared;
+	const taken = new Map<string, { workshop_id: string; same: string }>();
+	const tables = Object.values(APPEND_TABLES);
+	const rows = await rawQuery<{ id: string; workshop_id: string; same: string }[]>(
+		t,
+		WITH_IDS +
+			tables
+				.map((table) => `SELECT x.id, x.workshop_id, ${table === 'readings' ? "CONCAT(x.check_key, '|', x.samples)" : "''"} AS same FROM ids JOIN ${table} x ON x.id = ids.v`)
+				.join(' UNION ALL '),
+		[JSON.stringify(ids)]
+	);
+	for (const r of rows) taken.set(r.id, r);
+	const seen = new Set<string>();
+	return prepared.map((p) => {
+		if (!('table' in p)) return p;
+		const hit = taken.get(p.op.entityId);
+		if (hit && hit.workshop_id !== actor.workshopId) return reject(p.op, 'not_found');
+		if (hit) {
+			const same = p.table === 'readings' ? `${p.columns.check_key}|${p.columns.samples}` : '';
+			return hit.same === same ? ({ opId: p.op.opId, status: 'applied', version: 1 } as PushResult) : reject(p.op, 'id_conflict');
+		}
+		if (seen.has(p.op.entityId)) return reject(p.op, 'id_conflict');
+		seen.add(p.op.entityId);
+		return p;
+	});
+}
+
+/** Apply consecutive append-only ops; one result per op, in order. */
+export async function applyAppendOps(actor: Actor, ops: Op[], t: Transaction): Promise<PushResult[]> {
+	const ctx = { actor, t };
+	const prepared = await refuseTakenIds(await prepare(ops, ctx), ctx);
+	const ok = prepared.filter((p): p is Prepared => 'table' in p);
+	if (ok.length) {
+		// Seqs follow the order of the ops: the k-th applied op gets the block's first + k.
+		const byTable = new Map<string, { place: number; columns: Record<string, unknown> }[]>();
+		ok.forEach((p, place) => {
+			const list = byTable.get(p.table);
+			if (list) list.push({ place, columns: p.columns });
+			else byTable.set(p.table, [{ place, columns: p.columns }]);
+		});
+		const inserts = [...byTable].map(([table, rows]) => insertRows(table, rows, t));
+		const mism = ok.filter((p) => p.mismatch);
+		// The counter row stays locked from here to the commit: only the INSERTs remain.
+		const first = await nextSeq(t, actor.workshopId, ok.length);
+		for (const run of inserts) await run(first);
+		if (mism.length) {
+			await rawQuery(
+				t,
+				`INSERT INTO reading_mismatches (reading_id, workshop_id, device_verdict, server_verdict, created_at) VALUES ${mism.map(() => '(?, ?, ?, ?, UTC_TIMESTAMP(3))').join(', ')}`,
+				mism.flatMap((p) => [p.op.entityId, actor.workshopId, p.mismatch!.device, p.mismatch!.server])
+			);
+		}
+	}
+	return prepared.map((p) => ('table' in p ? { opId: p.op.opId, status: 'applied', version: 1 } : p));
+}
+
+export { APPEND_TABLES };

@@ -1,0 +1,184 @@
+/**
+ * The sync client: push the outbox in order, then pull the change feed.
+ *
+ * Push: the oldest ops in batches; each answer removes its entry. `applied`, `merged` and
+ * `duplicate` are done; `conflict` is kept as an issue (the lead settles it); `rejected` is
+ * kept as an issue with its reason and never blocks the queue — except `server_error`,
+ * which is transient. A transient failure (no network, 5xx, 429, `server_error`) stops the
+ * push with that entry still at the head; a 401 pauses until the user signs in again and
+ * never drops anything; a 413 halves the batch.
+ * Pull: from the stored cursor until `more` is false; upserts keep local unsent fields on
+ * top; `evict` removes a job and everything under it.
+ * One tab at a time (navigator.locks, when there is one). Never awaits the network inside
+ * an IndexedDB transaction.
+ */
+import { getMeta, setMeta, type LocalDb, type LocalRecord } from './local-db';
+import { countOutbox, peekOutbox } from './outbox';
+import type { Change, Op, PushResult } from './protocol';
+
+export type SyncState = 'idle' | 'syncing' | 'offline' | 'signed_out' | 'error';
+export type SyncReport = { state: SyncState; pushed: number; pulled: number; waiting: number; issues: number; error?: string };
+type Fetch = (input: string, init?: RequestInit) => Promise<Response>;
+
+const CURSOR = 'cursor';
+const DEFAULT_BATCH = 200;
+
+class Transient extends Error {}
+class SignedOut extends Error {}
+
+export class SyncEngine {
+	batch = DEFAULT_BATCH;
+	constructor(
+		private db: LocalDb,
+		private deviceId: string,
+		private fetcher: Fetch = (i, o) => fetch(i, o)
+	) {}
+
+	/** One full round: push everything it can, then pull. */
+	async syncOnce(): Promise<SyncReport> {
+		let pushed = 0;
+		let pulled = 0;
+		try {
+			pushed = await this.pushAll();
+			pulled = await this.pullAll();
+			await setMeta(this.db, 'lastSyncAt', new Date().toISOString());
+			return { state: 'idle', pushed, pulled, ...(await this.counts()) };
+		} catch (e) {
+			const state: SyncState = e instanceof SignedOut ? 'signed_out' : e instanceof Transient ? 'offline' : 'error';
+			if (state === 'error') console.error('sync failed', e);
+			return { state, pushed, pulled, ...(await this.counts()), error: (e as Error).message };
+		}
+	}
+
+	async counts() {
+		return { waiting: await countOutbox(this.db), issues: await this.db.count('issues') };
+	}
+
+	private async call(url: string, init?: RequestInit): Promise<Response> {
+		let r: Response;
+		try {
+			r = await this.fetcher(url, { credentials: 'same-origin', ...init });
+		} catch {
+			throw new Transient('No connection');
+		}
+		if (r.status === 401) throw new SignedOut('Signed out');
+		if (r.status >= 500 || r.status === 429) throw new Transient(`Server answered ${r.status}`);
+		return r;
+	}
+
+	/** Push until the outbox is empty or a transient failure stops it. */
+	async pushAll(): Promise<number> {
+		let sent = 0;
+		for (;;) {
+			const entries = await peekOutbox(this.db, this.batch);
+			if (!entries.length) return sent;
+			const r = await this.call('/api/sync/push', {
+				method: 'POST',
+				headers: { 'content-type': 'application/json' },
+				body: JSON.stringify({ deviceId: this.deviceId, ops: entries.map((e) => e.op) })
+			});
+			if (r.status === 413 && this.batch > 1) {
+				this.batch = Math.max(1, Math.floor(this.batch / 2));
+				continue;
+			}
+			if (r.status === 400) {
+				// The server names the first bad op: keep it as an issue so it never jams the queue.
+				const body = await r.json().catch(() => ({}));
+				const field = Object.keys(body?.error?.fields ?? {})[0] ?? 'ops.0';
+				const index = Number(field.split('.')[1] ?? 0) || 0;
+				const bad = entries[Math.min(index, entries.length - 1)];
+				await this.settleEntry(bad.seq!, { opId: bad.op.opId, status: 'rejected', reason: 'invalid', message: body?.error?.message }, bad.op);
+				continue;
+			}
+			if (!r.ok) throw new Transient(`Server answered ${r.status}`);
+			const { results } = (await r.json()) as { results: PushResult[] };
+			for (let i = 0; i < results.length; i++) {
+				const result = results[i];
+				if (result.status === 'rejected' && result.reason === 'server_error') throw new Transient('The server could not store an op');
+				await this.settleEntry(entries[i].seq!, result, entries[i].op);
+				sent++;
+			}
+		}
+	}
+
+	/** Remove one answered entry and update its record, in one transaction. */
+	private async settleEntry(seq: number, result: PushResult, op: Op) {
+		const tx = this.db.transaction(['outbox', 'records', 'issues'], 'readwrite');
+		const records = tx.objectStore('records');
+		const rec = await records.get([op.entity, op.entityId]);
+		const status = result.status === 'duplicate' ? result.firstStatus : result.status;
+		if (rec) {
+			rec.pending = Math.max(0, rec.pending - 1);
+			if (result.version != null && status !== 'rejected') rec.version = Math.max(rec.version, result.version);
+			await records.put(rec);
+		}
+		if (status === 'rejected' || status === 'conflict') {
+			const kind = status === 'rejected' ? 'rejected' : 'conflict';
+			await tx.objectStore('issues').put({ opId: op.opId, op, result, kind, at: new Date().toISOString(), seen: false });
+		}
+		await tx.objectStore('outbox').delete(seq);
+		await tx.done;
+	}
+
+	/** Pull pages until the feed has no more. */
+	async pullAll(): Promise<number> {
+		let count = 0;
+		for (let page = 0; page < 10_000; page++) {
+			const cursor = (await getMeta<number>(this.db, CURSOR)) ?? 0;
+			const r = await this.call(`/api/sync/pull?cursor=${cursor}&limit=500`);
+			if (r.status === 400) {
+				// The feed does not know this cursor (e.g. another database): start again.
+				await setMeta(this.db, CURSOR, 0);
+				if (cursor === 0) throw new Error('The server refused the pull');
+				continue;
+			}
+			const body = (await r.json()) as { changes: Change[]; cursor: number; more: boolean };
+			await applyChanges(this.db, body.changes, body.cursor);
+			count += body.changes.length;
+			if (!body.more) return count;
+		}
+		return count;
+	}
+}
+
+const jobOf = (c: Change): string | null =>
+	c.entity === 'job' ? c.entityId : ((c.record?.jobId as string | undefined) ?? null);
+
+/** Apply pulled changes and the new cursor in one transaction. */
+export async function applyChanges(db: LocalDb, changes: Change[], cursor: number): Promise<void> {
+	const tx = db.transaction(['records', 'outbox', 'meta'], 'readwrite');
+	const records = tx.objectStore('records');
+	const pendingOps = changes.length ? await tx.objectStore('outbox').getAll() : [];
+	for (const c of changes) {
+		const key: [string, string] = [c.entity, c.entityId];
+		if (c.op === 'evict') {
+			await records.delete(key);
+			for (const k of await records.index('by-job').getAllKeys(c.entityId)) await records.delete(k);
+			continue;
+		}
+		const local = await records.get(key);
+		if (local && local.version > c.version) continue; // already newer here
+		const mine = pendingOps.filter((e) => e.op.entity === c.entity && e.op.entityId === c.entityId);
+		const data = { ...(c.record ?? local?.data ?? {}) };
+		for (const e of mine) Object.assign(data, e.op.fields); // unsent local edits stay on top
+		const rec: LocalRecord = {
+			entity: c.entity,
+			id: c.entityId,
+			version: c.version,
+			jobId: jobOf(c) ?? local?.jobId ?? null,
+			data,
+			deleted: c.op === 'delete' || Boolean(c.record?.deleted),
+			pending: mine.length,
+			updatedAt: new Date().toISOString()
+		};
+		await records.put(rec);
+	}
+	await tx.objectStore('meta').put(cursor, CURSOR);
+	await tx.done;
+}
+
+/** Delay before retry number `attempt` (0-based): exponential, capped, with full jitter. */
+export function backoffMs(attempt: number, random = Math.random): number {
+	const cap = Math.min(5 * 60_000, 1000 * 2 ** attempt);
+	return Math.round(cap / 2 + (random() * cap) / 2);
+}

@@ -1,0 +1,4 @@
+export async function load({ parent }) {
+	const { me } = await parent();
+	return { me };
+}

@@ -1,0 +1,11 @@
+import { error } from '@sveltejs/kit';
+import { readJob } from '$lib/local/jobs';
+import { local } from '$lib/sync/session';
+
+export async function load({ params, parent }) {
+	const { me } = await parent();
+	const { db } = await local();
+	const job = await readJob(db, params.id);
+	if (!job) error(404, { message: 'This job is not on this phone.' });
+	return { me, job };
+}

@@ -1,0 +1,8 @@
+import { listOutbox } from '$lib/sync/outbox';
+import { local } from '$lib/sync/session';
+
+export async function load({ parent }) {
+	const { me } = await parent();
+	const { db } = await local();
+	return { me, waiting: await listOutbox(db), issues: await db.getAll('issues') };
+}

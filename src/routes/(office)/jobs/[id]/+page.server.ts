@@ -1,0 +1,78 @@
+import { error } from '@sveltejs/kit';
+import { z } from 'zod';
+import { NEXT_STATUS, readFaultCodeForm, readJobForm, type CodeList } from '$lib/schemas/job';
+import { guardPage } from '$lib/server/auth/guards';
+import { actorOf } from '$lib/server/auth/types';
+import { NotFoundError } from '$lib/server/errors';
+import { baseVersionOf, failFrom, valuesOf } from '$lib/server/forms';
+import * as jobs from '$lib/server/services/jobs';
+import { jobFormOptions } from '../../options.server';
+
+const listOf = (fd: FormData): CodeList => (fd.get('list') === 'after' ? 'after' : 'before');
+
+export async function load(event) {
+	const user = guardPage(event);
+	const actor = actorOf(user);
+	const id = event.params.id;
+	if (!z.uuid().safeParse(id).success) error(404, 'No such job');
+	const job = await jobs.readOne(actor, id).catch((e) => {
+		if (e instanceof NotFoundError) error(404, 'No such job, or it is not assigned to you');
+		throw e;
+	});
+	return {
+		title: `Job ${job.number}`,
+		job,
+		history: await jobs.statusHistory(actor, id),
+		next: NEXT_STATUS[job.status],
+		mayClose: user.role !== 'apprentice',
+		...(await jobFormOptions(actor, job))
+	};
+}
+
+/** Each action: guard → parse → service → the answer the form reads (`action` names the form). */
+export const actions = {
+	update: async (event) => {
+		const actor = actorOf(guardPage(event));
+		const fd = await event.request.formData();
+		try {
+			await jobs.editJob(actor, event.params.id, baseVersionOf(fd), readJobForm(fd));
+		} catch (e) {
+			return failFrom(e, valuesOf(fd), 'update');
+		}
+		return { action: 'update', saved: true };
+	},
+	status: async (event) => {
+		const actor = actorOf(guardPage(event));
+		const fd = await event.request.formData();
+		const input = { status: fd.get('status'), baseVersion: baseVersionOf(fd) };
+		try {
+			await jobs.changeStatus(actor, event.params.id, input);
+		} catch (e) {
+			return failFrom(e, valuesOf(fd), 'status');
+		}
+		return { action: 'status', saved: true };
+	},
+	addCode: async (event) => {
+		const actor = actorOf(guardPage(event));
+		const fd = await event.request.formData();
+		const list = listOf(fd);
+		try {
+			await jobs.addFaultCode(actor, event.params.id, list, readFaultCodeForm(fd));
+		} catch (e) {
+			return failFrom(e, valuesOf(fd), `addCode-${list}`);
+		}
+		return { action: `addCode-${list}`, saved: true };
+	},
+	removeCode: async (event) => {
+		const actor = actorOf(guardPage(event));
+		const fd = await event.request.formData();
+		const list = listOf(fd);
+		try {
+			const index = Number(fd.get('index'));
+			await jobs.removeFaultCode(actor, event.params.id, list, index, String(fd.get('code')));
+		} catch (e) {
+			return failFrom(e, valuesOf(fd), `addCode-${list}`);
+		}
+		return { action: `addCode-${list}`, saved: true };
+	}
+};

@@ -1,0 +1,2 @@
+/** The table is fetched from /api/vehicles in the browser. */
+export const load = () => ({ title: 'Vehicles' });

@@ -1,0 +1,145 @@
+import 'fake-indexeddb/auto';
+import { v7 as uuidv7 } from 'uuid';
+import { describe, expect, it } from 'vitest';
+import { applyChanges, backoffMs, SyncEngine } from '../../../src/lib/sync/engine';
+import { getMeta, getRecord, openLocalDb } from '../../../src/lib/sync/local-db';
+import { countOutbox, listOutbox, writeLocal } from '../../../src/lib/sync/outbox';
+import type { Op } from '../../../src/lib/sync/protocol';
+
+type Handler = (url: string, body: { ops?: Op[] } | null) => Response | Promise<Response>;
+function fakeServer(handler: Handler) {
+	const calls: { url: string; ops: Op[] }[] = [];
+	const fetcher = async (url: string, init?: RequestInit) => {
+		const body = init?.body ? JSON.parse(String(init.body)) : null;
+		calls.push({ url, ops: body?.ops ?? [] });
+		return handler(url, body);
+	};
+	return { calls, fetcher };
+}
+const json = (status: number, body: unknown) => new Response(JSON.stringify(body), { status, headers: { 'content-type': 'application/json' } });
+const applyAll = (ops: Op[]) => json(200, { results: ops.map((o) => ({ opId: o.opId, status: 'applied', version: o.kind === 'create' ? 1 : o.baseVersion + 1 })) });
+const emptyPull = () => json(200, { changes: [], cursor: 0, more: false });
+
+async function dbWithOps(n: number) {
+	const db = await openLocalDb(uuidv7());
+	for (let i = 0; i < n; i++) await writeLocal(db, { entity: 'customer', kind: 'create', fields: { name: `Customer ${i}` } });
+	return db;
+}
+
+describe('the sync client', () => {
+	it('sends the outbox in order and empties it', async () => {
+		const db = await dbWithOps(5);
+		const sent = (await listOutbox(db)).map((e) => e.op.opId);
+		const s = fakeServer((url, body) => (url.includes('push') ? applyAll(body!.ops!) : emptyPull()));
+		const engine = new SyncEngine(db, 'dev-1', s.fetcher);
+		engine.batch = 2;
+		const report = await engine.syncOnce();
+		expect(report).toMatchObject({ state: 'idle', pushed: 5, waiting: 0 });
+		expect(s.calls.filter((c) => c.url.includes('push')).flatMap((c) => c.ops.map((o) => o.opId))).toEqual(sent);
+	});
+
+	it('pauses on 401 and keeps every op for after sign-in', async () => {
+		const db = await dbWithOps(3);
+		let signedIn = false;
+		const s = fakeServer((url, body) => (!signedIn ? json(401, { error: { code: 'signed_out' } }) : url.includes('push') ? applyAll(body!.ops!) : emptyPull()));
+		const engine = new SyncEngine(db, 'dev-1', s.fetcher);
+		expect((await engine.syncOnce()).state).toBe('signed_out');
+		expect(await countOutbox(db)).toBe(3);
+		signedIn = true;
+		expect((await engine.syncOnce()).state).toBe('idle');
+		expect(await countOutbox(db)).toBe(0);
+	});
+
+	it('stops at the first transient failure with that op still at the head', async () => {
+		const db = await dbWithOps(4);
+		const head = (await listOutbox(db))[2].op.opId;
+		let calls = 0;
+		const s = fakeServer((url, body) => {
+			if (!url.includes('push')) return emptyPull();
+			calls++;
+			if (calls === 1) return applyAll(body!.ops!.slice(0, 2)); // the server answered two…
+			return json(503, {});
+		});
+		const engine = new SyncEngine(db, 'dev-1', s.fetcher);
+		engine.batch = 2;
+		expect((await engine.syncOnce()).state).toBe('offline');
+		const left = await listOutbox(db);
+		expect(left.map((e) => e.op.opId)[0]).toBe(head);
+		expect(left).toHaveLength(2);
+	});
+
+	it('treats no connection as offline and loses nothing', async () => {
+		const db = await dbWithOps(2);
+		const engine = new SyncEngine(db, 'dev-1', async () => {
+			throw new TypeError('Failed to fetch');
+		});
+		expect((await engine.syncOnce()).state).toBe('offline');
+		expect(await countOutbox(db)).toBe(2);
+	});
+
+	it('keeps a rejected op as an issue without blocking the ops behind it', async () => {
+		const db = await dbWithOps(3);
+		const ops = await listOutbox(db);
+		const s = fakeServer((url, body) =>
+			url.includes('push')
+				? json(200, { results: body!.ops!.map((o, i) => (i === 0 ? { opId: o.opId, status: 'rejected', reason: 'invalid' } : { opId: o.opId, status: 'applied', version: 1 })) })
+				: emptyPull()
+		);
+		const report = await new SyncEngine(db, 'dev-1', s.fetcher).syncOnce();
+		expect(report).toMatchObject({ waiting: 0, issues: 1 });
+		expect((await db.getAll('issues'))[0]).toMatchObject({ opId: ops[0].op.opId, kind: 'rejected' });
+	});
+
+	it('records a clash for the lead and keeps the local copy based on the new version', async () => {
+		const db = await dbWithOps(1);
+		const [e] = await listOutbox(db);
+		const s = fakeServer((url) =>
+			url.includes('push') ? json(200, { results: [{ opId: e.op.opId, status: 'conflict', version: 3, conflictId: uuidv7() }] }) : emptyPull()
+		);
+		await new SyncEngine(db, 'dev-1', s.fetcher).syncOnce();
+		expect((await db.getAll('issues'))[0].kind).toBe('conflict');
+		expect((await getRecord(db, 'customer', e.op.entityId))?.version).toBe(3);
+	});
+
+	it('pulls every page, stores the cursor, and keeps unsent local edits on top', async () => {
+		const db = await openLocalDb(uuidv7());
+		const jobId = uuidv7();
+		await applyChanges(db, [{ seq: 1, entity: 'job', entityId: jobId, version: 1, op: 'upsert', record: { complaint: 'Old', status: 'open' } }], 1);
+		await writeLocal(db, { entity: 'job', id: jobId, kind: 'patch', fields: { status: 'testing' } });
+		const pages = [
+			{ changes: [{ seq: 2, entity: 'job', entityId: jobId, version: 2, op: 'upsert', record: { complaint: 'New', status: 'open' } }], cursor: 2, more: true },
+			{ changes: [], cursor: 3, more: false }
+		];
+		const s = fakeServer((url) => (url.includes('pull') ? json(200, pages.shift()) : json(503, {})));
+		const engine = new SyncEngine(db, 'dev-1', s.fetcher);
+		await engine.pullAll();
+		const job = await getRecord(db, 'job', jobId);
+		expect(job?.data).toMatchObject({ complaint: 'New', status: 'testing' });
+		expect(job?.version).toBe(2);
+		expect(await getMeta(db, 'cursor')).toBe(3);
+	});
+
+	it('removes an evicted job and everything under it', async () => {
+		const db = await openLocalDb(uuidv7());
+		const jobId = uuidv7();
+		const testId = uuidv7();
+		await applyChanges(
+			db,
+			[
+				{ seq: 1, entity: 'job', entityId: jobId, version: 1, op: 'upsert', record: { complaint: 'x' } },
+				{ seq: 2, entity: 'test', entityId: testId, version: 1, op: 'upsert', record: { jobId } },
+				{ seq: 3, entity: 'job', entityId: jobId, version: 1, op: 'evict', record: null }
+			],
+			3
+		);
+		expect(await db.count('records')).toBe(0);
+	});
+
+	it('waits longer after each failure, with jitter, up to five minutes', () => {
+		expect(backoffMs(0, () => 0)).toBe(500);
+		expect(backoffMs(0, () => 1)).toBe(1000);
+		expect(backoffMs(3, () => 1)).toBe(8000);
+		expect(backoffMs(20, () => 1)).toBe(300_000);
+		expect(backoffMs(4, () => 0.5)).toBeGreaterThan(backoffMs(3, () => 0.5));
+	});
+});
