@@ -32,10 +32,29 @@ export default defineConfig({
 					'client/**/*.{js,css,ico,png,svg,webp,webmanifest,woff,woff2}',
 					'prerendered/**/*.{html,json}'
 				],
-				// Navigations with no signal get the app shell; the client router then renders
-				// the (app) screen for the URL from IndexedDB.
-				navigateFallback: '/shell',
-				navigateFallbackDenylist: [/^\/api\//],
+				// Page loads go to the network (so the server's guards and status codes apply);
+				// with no signal, or no answer within 4 s, they get the app shell, and the client
+				// router renders the (app) screen for the URL from IndexedDB.
+				navigateFallback: null,
+				runtimeCaching: [
+					{
+						// The technician's screens (their HTML holds no data): wait 4 s at most.
+						urlPattern: ({ request, url }) =>
+							request.mode === 'navigate' && /^\/(home|job|sync)(\/|$)/.test(url.pathname),
+						handler: 'NetworkFirst',
+						options: {
+							cacheName: 'app-screens',
+							networkTimeoutSeconds: 4,
+							precacheFallback: { fallbackURL: '/shell' }
+						}
+					},
+					{
+						// Server-rendered pages (lead, office, library) are never cached.
+						urlPattern: ({ request }) => request.mode === 'navigate',
+						handler: 'NetworkOnly',
+						options: { precacheFallback: { fallbackURL: '/shell' } }
+					}
+				],
 				clientsClaim: true,
 				skipWaiting: false
 			}

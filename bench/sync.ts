@@ -256,6 +256,15 @@ async function main() {
 	};
 	const { port, started } = await startServer();
 	const apps: ChildProcess[] = [];
+	// Interrupted: stop the app servers (their own process groups), and MariaDB if ours.
+	for (const signal of ['SIGINT', 'SIGTERM'] as const) {
+		process.once(signal, () => {
+			for (const a of apps) stopServe(a);
+			const done = () => process.exit(130);
+			if (started && !process.env.FIELDBENCH_KEEP_DB) stopServer().then(done, done);
+			else done();
+		});
+	}
 	let pool: mariadb.Pool | null = null;
 	let closeDb: (() => Promise<void>) | null = null;
 	try {

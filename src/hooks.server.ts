@@ -10,6 +10,12 @@ export const handle: Handle = async ({ event, resolve }) => {
 	event.locals.user = user;
 	event.locals.sessionId = sessionId;
 
+	// The technician's screens render in the browser (they must open offline), so their
+	// server guard is here: with signal, a signed-out visitor goes to sign-in.
+	if (!user && event.route.id?.startsWith('/(app)') && !event.isDataRequest) {
+		const next = encodeURIComponent(event.url.pathname + event.url.search);
+		return new Response(null, { status: 303, headers: { location: `/sign-in?next=${next}` } });
+	}
 	if (event.url.pathname.startsWith('/api/') && !event.route.id) {
 		return Response.json(errorBody('not_found', 'No such API route'), { status: 404 });
 	}

@@ -110,10 +110,31 @@ describe('POST /api/jobs', () => {
 		);
 	});
 
-	it('answers 401 when signed out', async () => {
+	it('answers 401 on every jobs, customers and vehicles route when signed out', async () => {
 		const { Client } = await import('../helpers/http');
-		const r = await new Client(as.lead.base).json('POST', '/api/jobs', { complaint: 'x' });
-		await expectError(r, 401, 'signed_out');
+		const out = new Client(as.lead.base);
+		const id = jobOfB;
+		const routes: [string, string][] = [
+			['GET', '/api/jobs'],
+			['POST', '/api/jobs'],
+			['GET', `/api/jobs/${id}`],
+			['PATCH', `/api/jobs/${id}`],
+			['POST', `/api/jobs/${id}/status`],
+			['GET', '/api/jobs/assignees'],
+			['GET', '/api/customers'],
+			['POST', '/api/customers'],
+			['GET', `/api/customers/${id}`],
+			['PATCH', `/api/customers/${id}`],
+			['GET', '/api/vehicles'],
+			['POST', '/api/vehicles'],
+			['GET', `/api/vehicles/${id}`],
+			['PATCH', `/api/vehicles/${id}`]
+		];
+		for (const [method, path] of routes) {
+			const r = method === 'GET' ? await out.get(path) : await out.json(method, path, {});
+			expect(r.status, `${method} ${path}`).toBe(401);
+			expect((await r.json()).error.code).toBe('signed_out');
+		}
 	});
 });
 
