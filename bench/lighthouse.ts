@@ -18,14 +18,15 @@
  *     attaches with `--port`. Mobile preset (form factor mobile, simulated throttling).
  *     Lighthouse's own storage reset clears the origin's service worker and caches but keeps
  *     cookies and IndexedDB, so each run is a cold load of a signed-in screen. Each screen is
- *     run BENCH_LH_RUNS times (3); the run with the median performance score is reported and
+ *     run BENCH_LH_RUNS times (5); the run with the median performance score is reported and
  *     its JSON kept under test-results/lighthouse/.
- *  4. A table (screen, performance, accessibility, JS kB compressed), every accessibility
- *     audit below 1 with the failing elements, then everything it started is stopped: the
+ *  4. A table (screen, performance, accessibility, JS kB compressed; 1 kB = 1,000 bytes), every
+ *     accessibility audit below 1 with the failing elements (also the weight-0 ones Lighthouse
+ *     shows without counting them), the machine's load average, then everything it started is stopped: the
  *     app, the browsers, the database `fieldbench_lh` (dropped), and MariaDB only when this
  *     run started it.
  *
- * Knobs (environment): BENCH_LH_RUNS (3), CHROMIUM_PATH (/usr/bin/chromium),
+ * Knobs (environment): BENCH_LH_RUNS (5), CHROMIUM_PATH (/usr/bin/chromium),
  * LIGHTHOUSE_VERSION (12.8.2).
  */
 import { spawn, type ChildProcess } from 'node:child_process';
@@ -34,12 +35,19 @@ import os from 'node:os';
 import path from 'node:path';
 import { chromium, type BrowserContext, type Page, type Response } from 'playwright-core';
 import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../scripts/lib/app';
-import { ROOT, dbEnv, dropDatabase, ensureDatabase, startServer, stopServer } from '../scripts/lib/mariadb';
+import {
+	ROOT,
+	dbEnv,
+	dropDatabase,
+	ensureDatabase,
+	startServer,
+	stopServer
+} from '../scripts/lib/mariadb';
 
 const DB_NAME = 'fieldbench_lh';
 const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
 const LH_VERSION = process.env.LIGHTHOUSE_VERSION ?? '12.8.2';
-const RUNS = Math.max(1, Number(process.env.BENCH_LH_RUNS ?? 3));
+const RUNS = Math.max(1, Number(process.env.BENCH_LH_RUNS ?? 5));
 const OUT = path.join(ROOT, 'test-results', 'lighthouse');
 const JOB = '019a0000-0000-7000-8000-000000000301';
 const TECH = 'tech@tallowbridge.example';
@@ -63,7 +71,7 @@ type LhResult = {
 	performance: number;
 	accessibility: number;
 	metrics: Record<string, number>;
-	failing: { id: string; title: string; items: string[] }[];
+	failing: { id: string; title: string; weight: number; items: string[] }[];
 	lhScriptBytes: number;
 	/** Lighthouse's measure of this machine's CPU speed during the run. */
 	benchmarkIndex: number;
@@ -77,7 +85,12 @@ const kB = (bytes: number) => (bytes / 1000).toFixed(1);
  * Reload `url` past the service worker and the HTTP cache; sum the encoded body sizes of the
  * scripts it loads (each URL once).
  */
-async function measureJs(context: BrowserContext, page: Page, url: string, ready: () => Promise<unknown>): Promise<JsLoad> {
+async function measureJs(
+	context: BrowserContext,
+	page: Page,
+	url: string,
+	ready: () => Promise<unknown>
+): Promise<JsLoad> {
 	const cdp = await context.newCDPSession(page);
 	await cdp.send('Network.enable');
 	await cdp.send('Network.setBypassServiceWorker', { bypass: true });
@@ -132,7 +145,10 @@ async function prepare(profile: string, base: string) {
 
 		await page.goto(`${base}/job/${JOB}/test/new`);
 		await page.getByLabel('Part number as read off the part').fill('TB-IC');
-		await page.getByTestId('parts').getByRole('button', { name: /TB-IC-2041/ }).click();
+		await page
+			.getByTestId('parts')
+			.getByRole('button', { name: /TB-IC-2041/ })
+			.click();
 		await page.getByLabel('Lead resistance in ohms').fill('0,2');
 		await page.getByRole('button', { name: 'Stood overnight' }).click();
 		await page.getByRole('button', { name: 'Start the test' }).click();
@@ -156,7 +172,9 @@ async function prepare(profile: string, base: string) {
 }
 
 /** Chromium, headless, on the profile, with a DevTools port for Lighthouse to attach to. */
-async function launchForLighthouse(profile: string): Promise<{ child: ChildProcess; port: number }> {
+async function launchForLighthouse(
+	profile: string
+): Promise<{ child: ChildProcess; port: number }> {
 	const port = await freePort(9333);
 	const child = spawn(
 		CHROMIUM,
@@ -242,12 +260,17 @@ async function lighthouse(profile: string, url: string, file: string): Promise<L
 		throw new Error(`lighthouse ended on ${lhr.finalDisplayedUrl}, not ${url} (signed out?)`);
 	}
 	const failing = (lhr.categories.accessibility.auditRefs as { id: string; weight: number }[])
-		.map((ref) => lhr.audits[ref.id])
+		.map((ref) => ({ ...lhr.audits[ref.id], weight: ref.weight }))
 		.filter((a) => a.score !== null && a.score < 1)
 		.map((a) => ({
 			id: a.id as string,
 			title: a.title as string,
-			items: ((a.details?.items ?? []) as { node?: { selector?: string; snippet?: string; explanation?: string } }[]).map(
+			weight: a.weight,
+			items: (
+				(a.details?.items ?? []) as {
+					node?: { selector?: string; snippet?: string; explanation?: string };
+				}[]
+			).map(
 				(it) =>
 					`${it.node?.selector ?? '?'}  ${it.node?.snippet ?? ''}\n        ${(it.node?.explanation ?? '').replace(/\n/g, ' ')}`
 			)
@@ -305,7 +328,9 @@ async function main() {
 		dbReady = true;
 		const env = dbEnv(db.port, DB_NAME);
 		Object.assign(process.env, env);
-		console.log(`MariaDB ${started ? 'started' : 'already running'} on 127.0.0.1:${db.port} (database ${DB_NAME})`);
+		console.log(
+			`MariaDB ${started ? 'started' : 'already running'} on 127.0.0.1:${db.port} (database ${DB_NAME})`
+		);
 		await migrate();
 		const { seedDemo } = await import('../src/lib/server/seed/demo');
 		const { closeDb } = await import('../src/lib/server/db');
@@ -330,7 +355,11 @@ async function main() {
 			const runs: LhResult[] = [];
 			for (let i = 0; i < RUNS; i++) {
 				console.log(`Lighthouse ${LH_VERSION}, ${sc.name}, run ${i + 1} of ${RUNS}…`);
-				runs.push(await withRetry(() => lighthouse(profile, sc.url, path.join(OUT, `${sc.name}-${i + 1}.json`))));
+				runs.push(
+					await withRetry(() =>
+						lighthouse(profile, sc.url, path.join(OUT, `${sc.name}-${i + 1}.json`))
+					)
+				);
 			}
 			const sorted = [...runs].sort((a, b) => a.performance - b.performance);
 			const median = sorted[Math.floor((sorted.length - 1) / 2)];
@@ -344,7 +373,15 @@ async function main() {
 				`load average ${loadStart} at the start and ${loadAvg()} at the end\n`
 		);
 		const row = (cells: string[]) => console.log(`| ${cells.join(' | ')} |`);
-		row(['screen', 'performance', 'accessibility', 'JS kB (compressed)', 'JS kB (uncompressed)', 'scripts', 'encoding']);
+		row([
+			'screen',
+			'performance',
+			'accessibility',
+			'JS kB (compressed)',
+			'JS kB (uncompressed)',
+			'scripts',
+			'encoding'
+		]);
 		row(['---', '---', '---', '---', '---', '---', '---']);
 		for (const r of results) {
 			row([
@@ -383,7 +420,9 @@ async function main() {
 			if (!r.lh.failing.length) continue;
 			console.log(`\nAccessibility audits below 1 on ${r.name}:`);
 			for (const f of r.lh.failing) {
-				console.log(`  ${f.id}: ${f.title}`);
+				const counts =
+					f.weight > 0 ? `weight ${f.weight}` : 'weight 0: shown, not counted in the score';
+				console.log(`  ${f.id} (${counts}): ${f.title}`);
 				for (const it of f.items) console.log(`    - ${it}`);
 			}
 		}
@@ -404,7 +443,11 @@ async function main() {
 const loadAvg = () => os.loadavg()[0].toFixed(1);
 
 async function chromiumVersion(): Promise<string> {
-	const b = await chromium.launch({ executablePath: CHROMIUM, headless: true, args: CHROMIUM_ARGS });
+	const b = await chromium.launch({
+		executablePath: CHROMIUM,
+		headless: true,
+		args: CHROMIUM_ARGS
+	});
 	const v = b.version();
 	await b.close();
 	return v;

@@ -7,8 +7,7 @@
  */
 import { QueryTypes, Sequelize } from 'sequelize';
 import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
-import { DEMO_PASSWORD } from '../../src/lib/server/seed/demo';
-import { openPhone, shot } from './browser';
+import { openPhone, shot, signInAs } from './browser';
 
 const base = inject('baseURL');
 const JOB = '019a0000-0000-7000-8000-000000000301';
@@ -59,11 +58,7 @@ async function smallTargets() {
 describe('the test flow', () => {
 	it('signs in with signal and has the job and the spec library on the phone', async () => {
 		const { page } = phone;
-		await page.goto(`${base}/sign-in`);
-		await page.getByLabel('E-mail').fill('tech@tallowbridge.example');
-		await page.getByLabel('Password').fill(DEMO_PASSWORD);
-		await page.getByRole('button', { name: 'Sign in' }).click();
-		await page.waitForURL(`${base}/home`);
+		await signInAs(phone, base, 'tech@tallowbridge.example');
 		await page.getByTestId('job-list').getByText('Job 1001').waitFor();
 		await expect.poll(() => page.evaluate(() => Boolean(navigator.serviceWorker.controller)), { timeout: 15_000 }).toBe(true);
 	});
@@ -202,5 +197,9 @@ describe('the test flow', () => {
 		} finally {
 			await db.close();
 		}
+		// The phone shows what the server made of its readings once they come back.
+		await page.goto(testUrl);
+		await expect.poll(() => page.getByTestId('server-check').textContent()).toContain('server came to the same results (8 readings)');
+		await shot(page, 'capture-7-checked-by-server');
 	});
 });

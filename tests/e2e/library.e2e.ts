@@ -5,8 +5,7 @@
  * count is assumed. Figures are invented.
  */
 import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
-import { DEMO_PASSWORD } from '../../src/lib/server/seed/demo';
-import { openPhone, shot } from './browser';
+import { openPhone, shot, signInAs } from './browser';
 
 const base = inject('baseURL');
 const PART = `E2E-CP-${Date.now().toString(36).toUpperCase()}`;
@@ -22,15 +21,7 @@ afterAll(async () => {
 	await phone?.close();
 });
 
-async function signIn(email: string) {
-	const { page, context } = phone;
-	await context.clearCookies();
-	await page.goto(`${base}/sign-in`);
-	await page.getByLabel('E-mail').fill(email);
-	await page.getByLabel('Password').fill(DEMO_PASSWORD);
-	await page.getByRole('button', { name: 'Sign in' }).click();
-	await page.waitForURL(`${base}/home`);
-}
+const signIn = (email: string) => signInAs(phone, base, email);
 
 /** Buttons and links on screen lower than 56 CSS px (DESIGN §7), and the page's width. */
 async function layoutProblems() {

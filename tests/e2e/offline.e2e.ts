@@ -1,6 +1,5 @@
 import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
-import { DEMO_PASSWORD } from '../../src/lib/server/seed/demo';
-import { openPhone, shot } from './browser';
+import { openPhone, shot, signInAs } from './browser';
 
 const base = inject('baseURL');
 const JOB_1001 = '019a0000-0000-7000-8000-000000000301'; // seeded for the demo technician
@@ -21,11 +20,7 @@ const badge = () => phone.page.getByTestId('sync-badge');
 describe('the offline app', () => {
 	it('installs: the service worker is active and Chromium reports no installability errors', async () => {
 		const { page } = phone;
-		await page.goto(`${base}/sign-in`);
-		await page.getByLabel('E-mail').fill('tech@tallowbridge.example');
-		await page.getByLabel('Password').fill(DEMO_PASSWORD);
-		await page.getByRole('button', { name: 'Sign in' }).click();
-		await page.waitForURL(`${base}/home`);
+		await signInAs(phone, base, 'tech@tallowbridge.example');
 		await page.getByTestId('job-list').getByText('Job 1001').waitFor();
 		const state = () => page.evaluate(async () => (await navigator.serviceWorker.ready).active?.state);
 		await expect.poll(state, { timeout: 15_000 }).toBe('activated');

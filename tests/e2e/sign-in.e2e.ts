@@ -1,6 +1,6 @@
 import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
-import { DEMO_PASSWORD, DEMO_USERS } from '../../src/lib/server/seed/demo';
-import { openPhone, shot } from './browser';
+import { DEMO_USERS } from '../../src/lib/server/seed/demo';
+import { openPhone, shot, signInAs } from './browser';
 
 const base = inject('baseURL');
 let phone: Awaited<ReturnType<typeof openPhone>>;
@@ -21,15 +21,7 @@ const ROLE_WORDS = {
 	apprentice: 'Apprentice'
 };
 
-async function signIn(email: string) {
-	const { page, context } = phone;
-	await context.clearCookies();
-	await page.goto(`${base}/sign-in`);
-	await page.getByLabel('E-mail').fill(email);
-	await page.getByLabel('Password').fill(DEMO_PASSWORD);
-	await page.getByRole('button', { name: 'Sign in' }).click();
-	await page.waitForURL(`${base}/home`);
-}
+const signIn = (email: string) => signInAs(phone, base, email);
 
 describe('sign-in at phone size', () => {
 	for (const u of DEMO_USERS) {
