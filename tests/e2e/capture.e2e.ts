@@ -69,6 +69,18 @@ describe('the test flow', () => {
 		await page.goto(`${base}/job/${JOB}/test/new`);
 		await page.getByLabel('Part number as read off the part').fill('TB-IC');
 		await page.getByTestId('parts').getByRole('button', { name: /TB-IC-2041/ }).click();
+		// Add a range to the meter from its accuracy table; it is kept on the phone.
+		await page.getByRole('link', { name: 'Edit your meters and their ranges' }).click();
+		await page.getByRole('button', { name: '+ Add a range' }).click();
+		const last = page.locator('fieldset').last();
+		await last.getByLabel('Range name').fill('2 kΩ');
+		await last.getByLabel('Resolution').fill('1');
+		await last.getByLabel('± % of reading').fill('0,8');
+		await last.getByLabel('+ counts').fill('1');
+		await page.getByRole('button', { name: 'Save meters' }).click();
+		await page.waitForURL(`${base}/job/${JOB}/test/new`);
+		await page.getByLabel('Part number as read off the part').fill('TB-IC');
+		await page.getByTestId('parts').getByRole('button', { name: /TB-IC-2041/ }).click();
 		await page.getByLabel('Lead resistance in ohms').fill('0,2');
 		await page.getByRole('button', { name: 'Stood overnight' }).click();
 		expect(await page.getByTestId('spec-applies').textContent()).toContain('cold spec');
@@ -90,6 +102,11 @@ describe('the test flow', () => {
 		await type('0,62');
 		await expect.poll(() => page.getByTestId('result').getAttribute('data-result')).toBe('within');
 		expect(await page.getByTestId('range-warning').count()).toBe(0); // the low-ohm range was picked
+		expect(await page.getByLabel('Range on your meter').locator('option').allTextContents()).toContain('2 kΩ');
+		// The coarse 200 Ω range (0.1 Ω, ±(0.8 % + 3)) cannot resolve 0.38–0.58 Ω: warned first.
+		await page.getByLabel('Range on your meter').selectOption('200 Ω');
+		await page.getByTestId('range-warning').waitFor();
+		await page.getByLabel('Range on your meter').selectOption('20 Ω (low-ohm)');
 		expect(await smallTargets()).toEqual([]);
 		await shot(page, 'capture-2-primary-ok');
 		await page.getByRole('button', { name: 'Save ▸' }).click();
