@@ -22,14 +22,14 @@
  *     its JSON kept under test-results/lighthouse/.
  *  4. A table (screen, performance, accessibility, JS kB compressed; 1 kB = 1,000 bytes), every
  *     accessibility audit below 1 with the failing elements (also the weight-0 ones Lighthouse
- *     shows without counting them), the machine's load average, then everything it started is stopped: the
- *     app, the browsers, the database `fieldbench_lh` (dropped), and MariaDB only when this
- *     run started it.
+ *     shows without counting them) and the machine's load average. Then everything it started
+ *     is stopped: the app, the browsers, the database `fieldbench_lh` (dropped), and MariaDB
+ *     only when this run started it.
  *
  * Knobs (environment): BENCH_LH_RUNS (5), CHROMIUM_PATH (/usr/bin/chromium),
  * LIGHTHOUSE_VERSION (12.8.2).
  */
-import { spawn, type ChildProcess } from 'node:child_process';
+import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { mkdirSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -337,6 +337,7 @@ async function main() {
 		await seedDemo();
 		await closeDb();
 		buildIfNeeded();
+		const rev = revision();
 		const s = await serve(await freePort(4700), env, 'ignore');
 		app = s.child;
 		const base = s.url;
@@ -370,7 +371,7 @@ async function main() {
 		console.log(
 			`\nLighthouse ${LH_VERSION} mobile (simulated throttling), median of ${RUNS} run(s); ` +
 				`${date}, ${os.cpus().length} cores, Chromium ${await chromiumVersion()}, Node ${process.version}, ` +
-				`load average ${loadStart} at the start and ${loadAvg()} at the end\n`
+				`load average ${loadStart} at the start and ${loadAvg()} at the end; sources at ${rev}\n`
 		);
 		const row = (cells: string[]) => console.log(`| ${cells.join(' | ')} |`);
 		row([
@@ -441,6 +442,16 @@ async function main() {
 }
 
 const loadAvg = () => os.loadavg()[0].toFixed(1);
+
+/** The commit the build came from (read-only git), marked when the working tree differs. */
+function revision(): string {
+	const git = (...args: string[]) =>
+		spawnSync('git', args, { cwd: ROOT, encoding: 'utf8' }).stdout?.trim() ?? '';
+	const head = git('rev-parse', '--short', 'HEAD') || 'unknown';
+	return git('status', '--porcelain', '--untracked-files=no')
+		? `${head} + uncommitted changes`
+		: head;
+}
 
 async function chromiumVersion(): Promise<string> {
 	const b = await chromium.launch({

@@ -19,7 +19,10 @@ export const handle: Handle = async ({ event, resolve }) => {
 	if (event.url.pathname.startsWith('/api/') && !event.route.id) {
 		return Response.json(errorBody('not_found', 'No such API route'), { status: 404 });
 	}
-	const response = await resolve(event);
+	// Fonts are preloaded too, so the text does not shift when the shipped font arrives.
+	const response = await resolve(event, {
+		preload: ({ type, path }) => type === 'js' || type === 'css' || (type === 'font' && path.endsWith('.woff2'))
+	});
 	response.headers.set('X-Content-Type-Options', 'nosniff');
 	response.headers.set('Referrer-Policy', 'same-origin');
 	response.headers.set('X-Frame-Options', 'DENY');
