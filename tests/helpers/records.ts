@@ -1,4 +1,4 @@
-/** Helpers for the jobs, customers and vehicles API tests: signed-in clients and error checks. */
+/** Helpers for the API tests: signed-in clients, the two-workshop set-up, creates and error checks. */
 import { expect, inject } from 'vitest';
 import { Client } from './http';
 import { makeWorkshop, TEST_PASSWORD } from './fixtures';
@@ -26,6 +26,32 @@ export async function signInAll(ws: Workshop): Promise<Record<Role, Client>> {
 	return out;
 }
 
+const clients = new Map<string, Promise<Client>>();
+/** The one client signed in as `role` of `ws`, made at first use and reused after. */
+export function clientOf(ws: Workshop, role: Role): Promise<Client> {
+	const key = `${ws.workshop.id}:${role}`;
+	if (!clients.has(key)) clients.set(key, signedIn(ws, role));
+	return clients.get(key)!;
+}
+
+/**
+ * Workshop "<label> A" with every role signed in, and workshop "<label> B", whose records
+ * the tests expect A's users never to see.
+ */
+export async function twoWorkshops(label: string) {
+	const a = await makeWorkshop(`${label} A`);
+	const b = await makeWorkshop(`${label} B`);
+	return { a, b, as: await signInAll(a) };
+}
+
+/** POST `body` to `path` as JSON, assert 201 (the answer is the message) and return the answer. */
+export async function postCreated(c: Client, path: string, body: Record<string, unknown>) {
+	const r = await c.json('POST', path, body);
+	const text = await r.text();
+	expect(r.status, text).toBe(201);
+	return JSON.parse(text);
+}
+
 /** Assert the one error body (DESIGN §5) with this status and code; returns the error. */
 export async function expectError(r: Response, status: number, code: string) {
 	const body = await r.json();
@@ -38,6 +64,26 @@ export async function expectError(r: Response, status: number, code: string) {
 		fields?: Record<string, string>;
 		current?: Record<string, unknown>;
 	};
+}
+
+/**
+ * The lead and then the technician change `/api/<resource>/<id>`, both from version 1: the
+ * lead's change is saved as version 2 and the technician's is refused with 409 and the
+ * current record, which carries the lead's change. Returns the error.
+ */
+export async function expectStaleRefused(
+	as: Record<Role, Client>,
+	resource: string,
+	id: string,
+	saved: Record<string, unknown>,
+	refused: Record<string, unknown>
+) {
+	const path = `/api/${resource}/${id}`;
+	await as.lead.json('PATCH', path, { baseVersion: 1, ...saved });
+	const r = await as.technician.json('PATCH', path, { baseVersion: 1, ...refused });
+	const e = await expectError(r, 409, 'stale_version');
+	expect(e.current).toMatchObject({ id, version: 2, ...saved });
+	return e;
 }
 
 /** Assert a 400 naming `field` among the invalid fields. */

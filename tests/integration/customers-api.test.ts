@@ -4,13 +4,14 @@ import { AuditEntry, Customer, Job } from '../../src/lib/server/db/models';
 import * as customers from '../../src/lib/server/services/customers';
 import { jobs } from '../../src/lib/server/services/jobs';
 import { vehicles } from '../../src/lib/server/services/vehicles';
-import { makeWorkshop } from '../helpers/fixtures';
 import type { Client } from '../helpers/http';
 import {
 	expectError,
 	expectInvalid,
-	signInAll,
+	expectStaleRefused,
+	postCreated,
 	tag,
+	twoWorkshops,
 	type Role,
 	type Workshop
 } from '../helpers/records';
@@ -21,16 +22,13 @@ let as: Record<Role, Client>;
 let customerOfB: string;
 
 beforeAll(async () => {
-	a = await makeWorkshop('Customers A');
-	b = await makeWorkshop('Customers B');
-	as = await signInAll(a);
+	({ a, b, as } = await twoWorkshops('Customers'));
 	customerOfB = (await customers.create(b.users.lead.actor, { name: 'Only in B' })).id as string;
 });
 
 async function add(c: Client, body: Record<string, unknown>) {
-	const r = await c.json('POST', '/api/customers', body);
-	expect(r.status, await r.clone().text()).toBe(201);
-	return (await r.json()).customer as Record<string, unknown> & { id: string; version: number };
+	const { customer } = await postCreated(c, '/api/customers', body);
+	return customer as Record<string, unknown> & { id: string; version: number };
 }
 
 describe('POST /api/customers', () => {
@@ -225,18 +223,12 @@ describe('PATCH /api/customers/:id', () => {
 
 	it('answers 409 with the current record when the version is stale', async () => {
 		const c = await add(as.lead, { name: 'Contested' });
-		await as.lead.json('PATCH', `/api/customers/${c.id}`, {
-			baseVersion: 1,
-			phone: '0100 555 0001'
-		});
-		const e = await expectError(
-			await as.technician.json('PATCH', `/api/customers/${c.id}`, {
-				baseVersion: 1,
-				phone: '0100 555 0002'
-			}),
-			409,
-			'stale_version'
+		await expectStaleRefused(
+			as,
+			'customers',
+			c.id,
+			{ phone: '0100 555 0001' },
+			{ phone: '0100 555 0002' }
 		);
-		expect(e.current).toMatchObject({ id: c.id, version: 2, phone: '0100 555 0001' });
 	});
 });

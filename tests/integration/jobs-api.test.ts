@@ -4,13 +4,15 @@ import { AuditEntry, Job } from '../../src/lib/server/db/models';
 import * as customers from '../../src/lib/server/services/customers';
 import { jobs } from '../../src/lib/server/services/jobs';
 import { vehicles } from '../../src/lib/server/services/vehicles';
-import { makeWorkshop } from '../helpers/fixtures';
 import type { Client } from '../helpers/http';
 import {
 	expectError,
 	expectInvalid,
+	expectStaleRefused,
+	postCreated,
 	signInAll,
 	tag,
+	twoWorkshops,
 	type Role,
 	type Workshop
 } from '../helpers/records';
@@ -22,17 +24,14 @@ let bs: Record<Role, Client>;
 let jobOfB: string;
 
 beforeAll(async () => {
-	a = await makeWorkshop('Jobs A');
-	b = await makeWorkshop('Jobs B');
-	as = await signInAll(a);
+	({ a, b, as } = await twoWorkshops('Jobs'));
 	bs = await signInAll(b);
 	jobOfB = (await jobs.create(b.users.lead.actor, { complaint: 'Workshop B only' })).id as string;
 });
 
 async function newJob(c: Client, body: Record<string, unknown>) {
-	const r = await c.json('POST', '/api/jobs', body);
-	expect(r.status, await r.clone().text()).toBe(201);
-	return (await r.json()).job as Record<string, unknown> & { id: string; version: number };
+	const { job } = await postCreated(c, '/api/jobs', body);
+	return job as Record<string, unknown> & { id: string; version: number };
 }
 
 describe('POST /api/jobs', () => {
@@ -365,16 +364,7 @@ describe('PATCH /api/jobs/:id', () => {
 
 	it('answers 409 with the current record when the version is stale', async () => {
 		const job = await newJob(as.technician, { complaint: 'Two phones' });
-		await as.lead.json('PATCH', `/api/jobs/${job.id}`, { baseVersion: 1, location: 'Bay 1' });
-		const e = await expectError(
-			await as.technician.json('PATCH', `/api/jobs/${job.id}`, {
-				baseVersion: 1,
-				location: 'Driveway'
-			}),
-			409,
-			'stale_version'
-		);
-		expect(e.current).toMatchObject({ id: job.id, version: 2, location: 'Bay 1' });
+		await expectStaleRefused(as, 'jobs', job.id, { location: 'Bay 1' }, { location: 'Driveway' });
 		expect((await Job.findByPk(job.id))!.location).toBe('Bay 1');
 	});
 });

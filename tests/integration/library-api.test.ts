@@ -7,28 +7,13 @@ import { QueryTypes } from 'sequelize';
 import { v7 as uuidv7 } from 'uuid';
 import { beforeAll, describe, expect, inject, it } from 'vitest';
 import { db } from '../../src/lib/server/db';
-import { makeWorkshop, TEST_PASSWORD } from '../helpers/fixtures';
+import { makeWorkshop } from '../helpers/fixtures';
 import { Client } from '../helpers/http';
+import { clientOf, type Role, type Workshop } from '../helpers/records';
 
 const base = inject('baseURL');
-type Ws = Awaited<ReturnType<typeof makeWorkshop>>;
-type Role = 'owner' | 'lead' | 'technician' | 'apprentice';
-let a: Ws;
-let b: Ws;
-let n = 0;
-const clients = new Map<string, Client>();
-
-/** A signed-in client for `role` of workshop `w` (one per user, reused). */
-async function as(w: Ws, role: Role): Promise<Client> {
-	const key = `${w.workshop.id}:${role}`;
-	if (!clients.has(key)) {
-		const c = new Client(base, `10.6.${Math.floor(++n / 200)}.${n % 200}`);
-		const r = await c.signIn(w.users[role].email, TEST_PASSWORD);
-		expect(r.status).toBe(303);
-		clients.set(key, c);
-	}
-	return clients.get(key)!;
-}
+let a: Workshop;
+let b: Workshop;
 
 const tag = () => uuidv7().slice(-8).toUpperCase();
 const check = (over: Record<string, unknown> = {}) => ({
@@ -51,9 +36,9 @@ const check = (over: Record<string, unknown> = {}) => ({
 async function body(r: Response) {
 	return (await r.json()) as Record<string, any>;
 }
-async function newComponent(w: Ws, over: Record<string, unknown> = {}, role: Role = 'lead') {
+async function newComponent(w: Workshop, over: Record<string, unknown> = {}, role: Role = 'lead') {
 	const r = await (
-		await as(w, role)
+		await clientOf(w, role)
 	).json('POST', '/api/components', {
 		partNumber: `TT-IC-${tag()}`,
 		kind: 'ignition_coil',
@@ -63,17 +48,17 @@ async function newComponent(w: Ws, over: Record<string, unknown> = {}, role: Rol
 	return (await body(r)).component;
 }
 async function newDraft(
-	w: Ws,
+	w: Workshop,
 	componentId: string,
 	checks: unknown[] = [check()],
 	role: Role = 'technician'
 ) {
-	const r = await (await as(w, role)).json('POST', '/api/sheets', { componentId, checks });
+	const r = await (await clientOf(w, role)).json('POST', '/api/sheets', { componentId, checks });
 	expect(r.status).toBe(201);
 	return (await body(r)).sheet;
 }
-async function approve(w: Ws, sheet: { id: string; version: number }, role: Role = 'lead') {
-	return (await as(w, role)).json('POST', `/api/sheets/${sheet.id}/approve`, {
+async function approve(w: Workshop, sheet: { id: string; version: number }, role: Role = 'lead') {
+	return (await clientOf(w, role)).json('POST', `/api/sheets/${sheet.id}/approve`, {
 		baseVersion: sheet.version
 	});
 }
@@ -109,14 +94,14 @@ describe('components', () => {
 			{ position: 'A', cylinders: [1, 4] },
 			{ position: 'B', cylinders: [2, 3] }
 		]);
-		const r = await (await as(a, 'apprentice')).get(`/api/components/${c.id}`);
+		const r = await (await clientOf(a, 'apprentice')).get(`/api/components/${c.id}`);
 		expect(r.status).toBe(200);
 		expect((await body(r)).component.positions[0].cylinders).toEqual([1, 4]);
 	});
 
 	it('refuses invalid fields with 400 naming each field', async () => {
 		const r = await (
-			await as(a, 'technician')
+			await clientOf(a, 'technician')
 		).json('POST', '/api/components', {
 			partNumber: '',
 			kind: 'ignition_coil',
@@ -131,7 +116,7 @@ describe('components', () => {
 	it('refuses a part number already in the library, whatever its letter case', async () => {
 		const c = await newComponent(a);
 		const r = await (
-			await as(a, 'technician')
+			await clientOf(a, 'technician')
 		).json('POST', '/api/components', {
 			partNumber: c.partNumber.toLowerCase(),
 			kind: 'relay'
@@ -143,22 +128,22 @@ describe('components', () => {
 	it('lets another workshop use the same part number, and hides each workshop’s component from the other (404)', async () => {
 		const c = await newComponent(a);
 		await newComponent(b, { partNumber: c.partNumber });
-		const r = await (await as(b, 'lead')).get(`/api/components/${c.id}`);
+		const r = await (await clientOf(b, 'lead')).get(`/api/components/${c.id}`);
 		expect(r.status).toBe(404);
 		expect((await body(r)).error.code).toBe('not_found');
 		const patch = await (
-			await as(b, 'lead')
+			await clientOf(b, 'lead')
 		).json('PATCH', `/api/components/${c.id}`, {
 			baseVersion: 1,
 			description: 'x'
 		});
 		expect(patch.status).toBe(404);
-		expect((await (await as(a, 'lead')).get('/api/components/not-a-uuid')).status).toBe(404);
+		expect((await (await clientOf(a, 'lead')).get('/api/components/not-a-uuid')).status).toBe(404);
 	});
 
 	it('changes a component at the version seen, and answers a stale version with 409 and the current record', async () => {
 		const c = await newComponent(a);
-		const tech = await as(a, 'technician');
+		const tech = await clientOf(a, 'technician');
 		const r1 = await tech.json('PATCH', `/api/components/${c.id}`, {
 			baseVersion: 1,
 			description: 'First'
@@ -181,7 +166,7 @@ describe('components', () => {
 			cautions: ['fuel']
 		});
 		const r = await (
-			await as(a, 'technician')
+			await clientOf(a, 'technician')
 		).json('PATCH', `/api/components/${c.id}`, {
 			baseVersion: 1,
 			description: 'Only this'
@@ -194,7 +179,7 @@ describe('components', () => {
 
 	it('refuses a patch without baseVersion or with bad fields (400 naming them)', async () => {
 		const c = await newComponent(a);
-		const tech = await as(a, 'technician');
+		const tech = await clientOf(a, 'technician');
 		const r1 = await tech.json('PATCH', `/api/components/${c.id}`, { description: 'x' });
 		expect(r1.status).toBe(400);
 		expect((await body(r1)).error.fields).toHaveProperty('baseVersion');
@@ -210,7 +195,7 @@ describe('components', () => {
 
 	it('lets a technician add a caution but only a lead remove one (403)', async () => {
 		const c = await newComponent(a, { kind: 'other', cautions: ['airbag'] });
-		const tech = await as(a, 'technician');
+		const tech = await clientOf(a, 'technician');
 		const refused = await tech.json('PATCH', `/api/components/${c.id}`, {
 			baseVersion: 1,
 			cautions: []
@@ -223,7 +208,7 @@ describe('components', () => {
 		});
 		expect(added.status).toBe(200);
 		const removed = await (
-			await as(a, 'lead')
+			await clientOf(a, 'lead')
 		).json('PATCH', `/api/components/${c.id}`, {
 			baseVersion: 2,
 			cautions: ['hot_surface']
@@ -240,7 +225,7 @@ describe('components', () => {
 });
 
 describe('the library list', () => {
-	let w: Ws;
+	let w: Workshop;
 	const ids: Record<string, string> = {};
 	beforeAll(async () => {
 		w = await makeWorkshop('Library list');
@@ -259,7 +244,7 @@ describe('the library list', () => {
 		await newDraft(w, ids['LL-200']);
 	});
 	const list = async (q: string) =>
-		body(await (await as(w, 'apprentice')).get(`/api/components?${q}`));
+		body(await (await clientOf(w, 'apprentice')).get(`/api/components?${q}`));
 	const parts = (p: Record<string, any>) =>
 		p.items.map((i: { partNumber: string }) => i.partNumber);
 
@@ -298,7 +283,7 @@ describe('the library list', () => {
 	});
 
 	it('refuses a bad query with 400 naming the parameter', async () => {
-		const r = await (await as(w, 'lead')).get('/api/components?pageSize=500&kind=widget');
+		const r = await (await clientOf(w, 'lead')).get('/api/components?pageSize=500&kind=widget');
 		expect(r.status).toBe(400);
 		expect(Object.keys((await body(r)).error.fields).sort()).toEqual(['kind', 'pageSize']);
 	});
@@ -311,13 +296,13 @@ describe('spec sheets', () => {
 		expect(s1).toMatchObject({ sheetVersion: 1, state: 'draft', version: 1, componentId: c.id });
 		const s2 = await newDraft(a, c.id, [check()], 'apprentice');
 		expect(s2.sheetVersion).toBe(2);
-		const r = await (await as(a, 'technician')).get(`/api/sheets/${s1.id}`);
+		const r = await (await clientOf(a, 'technician')).get(`/api/sheets/${s1.id}`);
 		expect(r.status).toBe(200);
 		const got = await body(r);
 		expect(got.sheet.checks[0].bands).toEqual(check().bands);
 		expect(got.component.id).toBe(c.id);
 		const listed = await body(
-			await (await as(a, 'technician')).get(`/api/sheets?componentId=${c.id}`)
+			await (await clientOf(a, 'technician')).get(`/api/sheets?componentId=${c.id}`)
 		);
 		expect(listed.items.map((s: { sheetVersion: number }) => s.sheetVersion)).toEqual([2, 1]);
 		expect(listed.total).toBe(2);
@@ -343,7 +328,7 @@ describe('spec sheets', () => {
 	])('refuses %s with 400 naming the field', async (_, bad, field) => {
 		const c = await newComponent(a);
 		const r = await (
-			await as(a, 'technician')
+			await clientOf(a, 'technician')
 		).json('POST', '/api/sheets', {
 			componentId: c.id,
 			checks: [check({ key: 'first' }), bad]
@@ -357,25 +342,27 @@ describe('spec sheets', () => {
 		const c = await newComponent(a);
 		const s = await newDraft(a, c.id);
 		const r = await (
-			await as(b, 'lead')
+			await clientOf(b, 'lead')
 		).json('POST', '/api/sheets', { componentId: c.id, checks: [check()] });
 		expect(r.status).toBe(404);
-		expect((await (await as(b, 'lead')).get(`/api/sheets/${s.id}`)).status).toBe(404);
+		expect((await (await clientOf(b, 'lead')).get(`/api/sheets/${s.id}`)).status).toBe(404);
 		const patch = await (
-			await as(b, 'lead')
+			await clientOf(b, 'lead')
 		).json('PATCH', `/api/sheets/${s.id}`, {
 			baseVersion: 1,
 			source: { document: 'x' }
 		});
 		expect(patch.status).toBe(404);
-		const listed = await body(await (await as(b, 'lead')).get(`/api/sheets?componentId=${c.id}`));
+		const listed = await body(
+			await (await clientOf(b, 'lead')).get(`/api/sheets?componentId=${c.id}`)
+		);
 		expect(listed.total).toBe(0);
 	});
 
 	it('edits a draft at the version seen; a stale version is 409 with the current record', async () => {
 		const c = await newComponent(a);
 		const s = await newDraft(a, c.id);
-		const tech = await as(a, 'technician');
+		const tech = await clientOf(a, 'technician');
 		const r1 = await tech.json('PATCH', `/api/sheets/${s.id}`, {
 			baseVersion: 1,
 			source: { document: 'Invented data sheet', section: '2', page: '7' }
@@ -412,9 +399,9 @@ describe('approval', () => {
 			const r = await approve(a, s, role);
 			expect(r.status).toBe(403);
 			expect((await body(r)).error.code).toBe('forbidden');
-			expect((await body(await (await as(a, 'lead')).get(`/api/sheets/${s.id}`))).sheet.state).toBe(
-				'draft'
-			);
+			expect(
+				(await body(await (await clientOf(a, 'lead')).get(`/api/sheets/${s.id}`))).sheet.state
+			).toBe('draft');
 		}
 	);
 
@@ -426,7 +413,9 @@ describe('approval', () => {
 		const sheet = (await body(r)).sheet;
 		expect(sheet).toMatchObject({ state: 'approved', approvedBy: a.users.lead.id, version: 2 });
 		expect(Date.parse(sheet.approvedAt)).toBeGreaterThan(Date.now() - 60_000);
-		const summary = await body(await (await as(a, 'apprentice')).get(`/api/components/${c.id}`));
+		const summary = await body(
+			await (await clientOf(a, 'apprentice')).get(`/api/components/${c.id}`)
+		);
 		expect(summary.sheets[0]).toMatchObject({
 			sheetVersion: 1,
 			state: 'approved',
@@ -443,7 +432,7 @@ describe('approval', () => {
 		const c = await newComponent(a);
 		const s = await newDraft(a, c.id);
 		await (
-			await as(a, 'technician')
+			await clientOf(a, 'technician')
 		).json('PATCH', `/api/sheets/${s.id}`, {
 			baseVersion: 1,
 			checks: [check({ label: 'Changed' })]
@@ -471,7 +460,7 @@ describe('an approved version never changes', () => {
 
 	it('refuses an edit with 409 sheet_approved, carrying the approved record, and keeps it as it was', async () => {
 		const r = await (
-			await as(a, 'lead')
+			await clientOf(a, 'lead')
 		).json('PATCH', `/api/sheets/${v1.id}`, {
 			baseVersion: v1.version,
 			checks: [check({ bands: [{ fromC: null, toC: null, min: 0.1, max: 0.9 }] })]
@@ -480,37 +469,39 @@ describe('an approved version never changes', () => {
 		const e = (await body(r)).error;
 		expect(e.code).toBe('sheet_approved');
 		expect(e.current).toMatchObject({ id: v1.id, state: 'approved', version: v1.version });
-		const now = (await body(await (await as(a, 'lead')).get(`/api/sheets/${v1.id}`))).sheet;
+		const now = (await body(await (await clientOf(a, 'lead')).get(`/api/sheets/${v1.id}`))).sheet;
 		expect(now.checks).toEqual(v1.checks);
 		expect(now.version).toBe(v1.version);
 	});
 
 	it('refuses to discard it or approve it again', async () => {
 		const del = await (
-			await as(a, 'lead')
+			await clientOf(a, 'lead')
 		).json('DELETE', `/api/sheets/${v1.id}`, { baseVersion: v1.version });
 		expect(del.status).toBe(409);
 		expect((await approve(a, v1)).status).toBe(409);
 	});
 
 	it('starts the next draft from it: version 2 with the same checks, version 1 untouched', async () => {
-		const r = await (await as(a, 'apprentice')).json('POST', `/api/sheets/${v1.id}/next-draft`, {});
+		const r = await (
+			await clientOf(a, 'apprentice')
+		).json('POST', `/api/sheets/${v1.id}/next-draft`, {});
 		expect(r.status).toBe(201);
 		const v2 = (await body(r)).sheet;
 		expect(v2).toMatchObject({ sheetVersion: 2, state: 'draft', componentId: c.id, version: 1 });
 		expect(v2.checks).toEqual(v1.checks);
 		const edited = await (
-			await as(a, 'apprentice')
+			await clientOf(a, 'apprentice')
 		).json('PATCH', `/api/sheets/${v2.id}`, {
 			baseVersion: 1,
 			checks: [check({ bands: [{ fromC: null, toC: 50, min: 0.41, max: 0.61 }] })]
 		});
 		expect(edited.status).toBe(200);
 		expect(
-			(await body(await (await as(a, 'lead')).get(`/api/sheets/${v1.id}`))).sheet.checks
+			(await body(await (await clientOf(a, 'lead')).get(`/api/sheets/${v1.id}`))).sheet.checks
 		).toEqual(v1.checks);
 		expect(
-			(await (await as(b, 'lead')).json('POST', `/api/sheets/${v1.id}/next-draft`, {})).status
+			(await (await clientOf(b, 'lead')).json('POST', `/api/sheets/${v1.id}/next-draft`, {})).status
 		).toBe(404);
 	});
 
@@ -533,25 +524,27 @@ describe('discarding a draft', () => {
 		const c = await newComponent(a);
 		const mine = await newDraft(a, c.id, [check()], 'apprentice');
 		const refused = await (
-			await as(a, 'technician')
+			await clientOf(a, 'technician')
 		).json('DELETE', `/api/sheets/${mine.id}`, { baseVersion: 1 });
 		expect(refused.status).toBe(403);
 		const ok = await (
-			await as(a, 'apprentice')
+			await clientOf(a, 'apprentice')
 		).json('DELETE', `/api/sheets/${mine.id}`, { baseVersion: 1 });
 		expect(ok.status).toBe(200);
-		expect((await (await as(a, 'apprentice')).get(`/api/sheets/${mine.id}`)).status).toBe(404);
+		expect((await (await clientOf(a, 'apprentice')).get(`/api/sheets/${mine.id}`)).status).toBe(
+			404
+		);
 		const other = await newDraft(a, c.id, [check()], 'apprentice');
 		expect(other.sheetVersion).toBe(2); // a discarded version number is never reused
 		const byLead = await (
-			await as(a, 'lead')
+			await clientOf(a, 'lead')
 		).json('DELETE', `/api/sheets/${other.id}`, { baseVersion: 1 });
 		expect(byLead.status).toBe(200);
 	});
 });
 
 describe('CSV import and export', () => {
-	let src: Ws;
+	let src: Workshop;
 	beforeAll(async () => {
 		src = await makeWorkshop('CSV source');
 		const pack = await newComponent(src, {
@@ -587,7 +580,7 @@ describe('CSV import and export', () => {
 				bands: [{ fromC: null, toC: null, min: 0.007, max: null }]
 			}
 		]);
-		const lead = await as(src, 'lead');
+		const lead = await clientOf(src, 'lead');
 		await lead.json('PATCH', `/api/sheets/${v1.id}`, {
 			baseVersion: 1,
 			source: { document: 'Invented data sheet', section: '3.2', page: '11' }
@@ -598,21 +591,24 @@ describe('CSV import and export', () => {
 		await newComponent(src, { partNumber: 'CSV-RL-0002', kind: 'relay' });
 	});
 
-	const exportOf = async (w: Ws, q = '') => {
-		const r = await (await as(w, 'technician')).get(`/api/components/csv${q}`, 'text/csv');
+	const exportOf = async (w: Workshop, q = '') => {
+		const r = await (await clientOf(w, 'technician')).get(`/api/components/csv${q}`, 'text/csv');
 		expect(r.status).toBe(200);
 		expect(r.headers.get('content-type')).toMatch(/^text\/csv/);
 		return r.text();
 	};
-	const importInto = async (w: Ws, text: string, role: Role = 'lead', type = 'text/csv') =>
+	const importInto = async (w: Workshop, text: string, role: Role = 'lead', type = 'text/csv') =>
 		fetch(`${base}/api/components/csv`, {
 			method: 'POST',
-			headers: (await as(w, role)).headers({ 'content-type': type, accept: 'application/json' }),
+			headers: (await clientOf(w, role)).headers({
+				'content-type': type,
+				accept: 'application/json'
+			}),
 			body: text
 		});
 
 	it('exports the workshop’s library in its own layout, limits in the check’s unit', async () => {
-		const r = await (await as(src, 'apprentice')).get('/api/components/csv', 'text/csv');
+		const r = await (await clientOf(src, 'apprentice')).get('/api/components/csv', 'text/csv');
 		const bytes = new Uint8Array(await r.arrayBuffer());
 		expect([...bytes.slice(0, 3)]).toEqual([0xef, 0xbb, 0xbf]); // UTF-8 byte-order mark, for spreadsheets
 		expect(r.headers.get('content-disposition')).toMatch(
@@ -637,7 +633,7 @@ describe('CSV import and export', () => {
 		});
 		expect(await exportOf(dest)).toBe(first);
 		const listed = await body(
-			await (await as(dest, 'technician')).get('/api/components?q=CSV-CP-0001')
+			await (await clientOf(dest, 'technician')).get('/api/components?q=CSV-CP-0001')
 		);
 		expect(listed.items[0]).toMatchObject({ approvedVersion: 1, draftVersion: 2 });
 		// Importing the same file again changes nothing.
@@ -669,7 +665,9 @@ describe('CSV import and export', () => {
 		].join('\n');
 		const r = await importInto(dest, text);
 		expect(r.status).toBe(200);
-		const list = await body(await (await as(dest, 'technician')).get('/api/sheets?state=approved'));
+		const list = await body(
+			await (await clientOf(dest, 'technician')).get('/api/sheets?state=approved')
+		);
 		expect(list.items[0].approvedBy).toBe(dest.users.lead.id);
 		const bands = list.items[0].checks.map((c: { bands: unknown[] }) => c.bands[0]);
 		expect(bands).toEqual([
@@ -692,7 +690,7 @@ describe('CSV import and export', () => {
 		expect(e.message).toContain(`Line ${i + 1}, column max`);
 		expect(e.fields).toHaveProperty([`line.${i + 1}.max`]);
 		expect(await changeCount(dest.workshop.id)).toBe(before);
-		const listed = await body(await (await as(dest, 'lead')).get('/api/components'));
+		const listed = await body(await (await clientOf(dest, 'lead')).get('/api/components'));
 		expect(listed.total).toBe(0);
 	});
 
@@ -715,7 +713,9 @@ describe('CSV import and export', () => {
 			expect.objectContaining({ line: 4, column: 'sheet_version' })
 		]);
 		expect(await changeCount(dest.workshop.id)).toBe(before);
-		const listed = await body(await (await as(dest, 'lead')).get('/api/components?q=RB-IC-0001'));
+		const listed = await body(
+			await (await clientOf(dest, 'lead')).get('/api/components?q=RB-IC-0001')
+		);
 		expect(listed.total).toBe(0);
 	});
 

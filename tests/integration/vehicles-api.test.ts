@@ -10,13 +10,14 @@ import { AuditEntry, Job, Vehicle } from '../../src/lib/server/db/models';
 import * as customers from '../../src/lib/server/services/customers';
 import { jobs } from '../../src/lib/server/services/jobs';
 import { vehicles } from '../../src/lib/server/services/vehicles';
-import { makeWorkshop } from '../helpers/fixtures';
 import type { Client } from '../helpers/http';
 import {
 	expectError,
 	expectInvalid,
-	signInAll,
+	expectStaleRefused,
+	postCreated,
 	tag,
+	twoWorkshops,
 	type Role,
 	type Workshop
 } from '../helpers/records';
@@ -32,9 +33,7 @@ let as: Record<Role, Client>;
 let vehicleOfB: string;
 
 beforeAll(async () => {
-	a = await makeWorkshop('Vehicles A');
-	b = await makeWorkshop('Vehicles B');
-	as = await signInAll(a);
+	({ a, b, as } = await twoWorkshops('Vehicles'));
 	vehicleOfB = (
 		await vehicles.create(b.users.lead.actor, {
 			make: 'Tessaly',
@@ -55,9 +54,7 @@ const car = (extra: Record<string, unknown> = {}) => ({
 });
 
 async function add(c: Client, body: Record<string, unknown>) {
-	const r = await c.json('POST', '/api/vehicles', body);
-	const out = await r.json();
-	expect(r.status, JSON.stringify(out)).toBe(201);
+	const out = await postCreated(c, '/api/vehicles', body);
 	return out as { vehicle: Record<string, unknown> & { id: string }; warnings: { vin?: string } };
 }
 
@@ -294,19 +291,13 @@ describe('PATCH /api/vehicles/:id', () => {
 
 	it('answers 409 with the current record when the version is stale', async () => {
 		const { vehicle } = await add(as.lead, car({ vin: WORKED_VIN }));
-		await as.lead.json('PATCH', `/api/vehicles/${vehicle.id}`, {
-			baseVersion: 1,
-			plate: 'TB25 AAA'
-		});
-		const e = await expectError(
-			await as.technician.json('PATCH', `/api/vehicles/${vehicle.id}`, {
-				baseVersion: 1,
-				plate: 'TB25 BBB'
-			}),
-			409,
-			'stale_version'
+		await expectStaleRefused(
+			as,
+			'vehicles',
+			vehicle.id,
+			{ plate: 'TB25 AAA' },
+			{ plate: 'TB25 BBB' }
 		);
-		expect(e.current).toMatchObject({ id: vehicle.id, version: 2, plate: 'TB25 AAA' });
 	});
 });
 

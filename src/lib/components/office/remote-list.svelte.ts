@@ -13,6 +13,8 @@ export class RemoteList<T> {
 	pageSize = $state(20);
 	/** The API's message when it refused the query (e.g. a filter it cannot read). */
 	problem = $state<string | null>(null);
+	/** Whether an answer has arrived yet (the items are the latest one's). */
+	answered = $state(false);
 	#ticket = 0;
 
 	constructor(
@@ -48,6 +50,7 @@ export class RemoteList<T> {
 			this.page = body.page;
 			this.pageSize = body.pageSize;
 			this.problem = null;
+			this.answered = true;
 			this.state = 'ready';
 		} catch {
 			if (ticket !== this.#ticket) return;
