@@ -169,6 +169,14 @@ describe('push', () => {
 		expect((await push(app, 'phone-x', [op('job', 'patch', jobId, { notes: 'x' }, v)]))[0]).toMatchObject({ status: 'rejected', reason: 'forbidden' });
 	});
 
+	it('lets the author discard a draft sheet through sync, and refuses another technician', async () => {
+		const draft = create('sheet', { componentId, checks: CHECKS });
+		expect((await push(tech, 'phone-a', [draft]))[0].status).toBe('applied');
+		const app = await signedIn(ws.users.apprentice.email);
+		expect((await push(app, 'phone-x', [op('sheet', 'delete', draft.entityId, {}, 1)]))[0]).toMatchObject({ status: 'rejected', reason: 'forbidden' });
+		expect((await push(tech, 'phone-a', [op('sheet', 'delete', draft.entityId, {}, 1)]))[0].status).toBe('applied');
+	});
+
 	it('applies the rest of a batch when one op fails', async () => {
 		const bad = create('customer', { name: '' });
 		const good = create('customer', { name: 'Orrin Pell' });

@@ -36,7 +36,9 @@ export async function refuseMutable(
 	t: Transaction
 ): Promise<string | null> {
 	const entity = op.entity as MutableEntity;
-	if (op.kind === 'delete' && !isLead(actor) && entity !== 'test') return 'Only a lead deletes this';
+	// A draft sheet may also be discarded by its author, as through the JSON API.
+	const ownDraft = entity === 'sheet' && row?.state === 'draft' && row?.createdBy === actor.userId;
+	if (op.kind === 'delete' && !isLead(actor) && entity !== 'test' && !ownDraft) return 'Only a lead deletes this';
 	switch (entity) {
 		case 'job': {
 			if (actor.role !== 'apprentice') return null;
