@@ -1,9 +1,10 @@
 /** Shared by the start script and the end-to-end tests: migrate, build and serve. */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { existsSync, readdirSync, statSync, writeFileSync } from 'node:fs';
-import net from 'node:net';
 import path from 'node:path';
-import { ROOT } from './mariadb';
+import { freePort, portFree, ROOT } from './mariadb';
+
+export { freePort };
 
 /** Apply pending migrations to the database named in the environment. */
 export async function migrate(): Promise<number> {
@@ -45,20 +46,6 @@ export function buildIfNeeded(force = false): boolean {
 	}
 	writeFileSync(STAMP, new Date().toISOString());
 	return true;
-}
-
-export function portFree(port: number, host = '127.0.0.1'): Promise<boolean> {
-	return new Promise((resolve) => {
-		const srv = net.createServer();
-		srv.once('error', () => resolve(false));
-		srv.listen(port, host, () => srv.close(() => resolve(true)));
-	});
-}
-
-export async function freePort(from: number): Promise<number> {
-	let port = from;
-	while (!(await portFree(port))) port++;
-	return port;
 }
 
 /** Start `node build` in its own process group; resolves once it answers /api/health. */

@@ -82,12 +82,20 @@ function writeDefaults(port: number): void {
 	writeFileSync(CNF, cnf);
 }
 
-function portFree(port: number): Promise<boolean> {
+/** Whether nothing listens on 127.0.0.1:`port`. */
+export function portFree(port: number): Promise<boolean> {
 	return new Promise((resolve) => {
 		const srv = net.createServer();
 		srv.once('error', () => resolve(false));
 		srv.listen(port, '127.0.0.1', () => srv.close(() => resolve(true)));
 	});
+}
+
+/** The first free port from `from` upwards. */
+export async function freePort(from: number): Promise<number> {
+	let port = from;
+	while (!(await portFree(port))) port++;
+	return port;
 }
 
 function ping(): boolean {
@@ -140,8 +148,7 @@ export async function startServer(): Promise<{ port: number; started: boolean }>
 	const stale = readPid();
 	if (stale && !alive(stale)) rmSync(PID_FILE, { force: true });
 
-	let port = DEFAULT_PORT;
-	while (!(await portFree(port))) port++;
+	const port = await freePort(DEFAULT_PORT);
 	writeDefaults(port);
 	if (port !== DEFAULT_PORT) console.log(`Port ${DEFAULT_PORT} is taken; MariaDB uses ${port}.`);
 

@@ -26,10 +26,13 @@ async function signedIn(email: string) {
 	return c;
 }
 
-/** Invented figures for the test only: a two-band resistance check. */
+/**
+ * A coil's primary winding: cold spec (below 50 °C) 0.36–0.55 Ω, hot spec (50–100 °C)
+ * 0.45–0.65 Ω — common practice, no published source.
+ */
 const CHECKS = [
 	{ key: 'primary', label: 'Primary winding', quantity: 'resistance', from: '1', to: '2', condition: 'key_off', unit: 'Ω', openOk: false,
-		bands: [{ fromC: null, toC: 50, min: 0.4, max: 0.6 }, { fromC: 50, toC: null, min: 0.5, max: 0.7 }] }
+		bands: [{ fromC: null, toC: 50, min: 0.36, max: 0.55 }, { fromC: 50, toC: 100, min: 0.45, max: 0.65 }] }
 ];
 
 beforeAll(async () => {
@@ -124,7 +127,7 @@ describe('push', () => {
 
 	it('recomputes each reading on the server and records a mismatch with the device', async () => {
 		const t = newTest();
-		// 0.75 Ω read − 0.1 Ω leads = 0.65 Ω against the cold band 0.4–0.6 Ω: over spec.
+		// 0.75 Ω read − 0.1 Ω leads = 0.65 Ω against the cold spec 0.36–0.55 Ω: over spec.
 		const r1 = reading(t.entityId, 0.75, { value: 0.65, verdict: 'within' });
 		const r2 = reading(t.entityId, 0.55, { value: 0.45, verdict: 'within' });
 		await push(tech, 'phone-a', [t, r1, r2]);

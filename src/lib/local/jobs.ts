@@ -1,5 +1,5 @@
 /** The technician's jobs as the phone holds them (IndexedDB), joined with customer and vehicle. */
-import { getRecord, listByJob, listRecords, type LocalDb, type LocalRecord } from '../sync/local-db';
+import { getRecord, listRecords, type LocalDb, type LocalRecord } from '../sync/local-db';
 import { writeLocal } from '../sync/outbox';
 import type { Me } from '../sync/session';
 import type { JobStatus } from '../schemas/job';
@@ -72,6 +72,3 @@ export async function readJob(db: LocalDb, id: string): Promise<JobView | null> 
 export async function patchJob(db: LocalDb, id: string, fields: Partial<Pick<JobView, 'status' | 'notes' | 'codesAfter' | 'codesBefore'>>) {
 	return writeLocal(db, { entity: 'job', id, kind: 'patch', fields, jobId: id });
 }
-
-/** Everything recorded under a job (tests and readings), for the job page. */
-export const listUnderJob = listByJob;

@@ -22,3 +22,6 @@ export type Actor = {
 export function actorOf(user: SessionUser, deviceId: string | null = 'web'): Actor {
 	return { userId: user.id, workshopId: user.workshopId, role: user.role, deviceId };
 }
+
+/** Leads and owners: they see the whole workshop, approve, sign off and settle clashes. */
+export const isLead = (a: Pick<Actor, 'role'>) => a.role === 'lead' || a.role === 'owner';

@@ -11,13 +11,13 @@
  *   on one of their own jobs.
  */
 import { Op, type Transaction } from 'sequelize';
-import type { Actor } from '../auth/types';
+import { isLead, type Actor } from '../auth/types';
 import { Job, User } from '../db/models';
 import { ForbiddenError, NotFoundError, ValidationError } from '../errors';
 import type { JobStatus } from '../../schemas/job';
 
 /** Leads and owners see the whole workshop; others see the jobs assigned to them. */
-export const seesAllJobs = (a: Actor) => a.role === 'lead' || a.role === 'owner';
+export const seesAllJobs = isLead;
 
 /** Roles a job can be assigned to. */
 export const ASSIGNABLE_ROLES = ['technician', 'apprentice'] as const;

@@ -15,7 +15,7 @@ import {
 	sheetPatch,
 	type ComponentRecord
 } from '../../schemas/component';
-import type { Actor } from '../auth/types';
+import { isLead, type Actor } from '../auth/types';
 import { db } from '../db';
 import { Component, SpecSheet, User } from '../db/models';
 import { ForbiddenError, NotFoundError, StaleVersionError, ValidationError } from '../errors';
@@ -118,7 +118,6 @@ export const importedSheets = defineAggregate({
 	toRecord: sheetRecord
 });
 
-const isLead = (a: Actor) => a.role === 'lead' || a.role === 'owner';
 
 /** 400 naming `partNumber` when another component of the workshop has it (any letter case). */
 async function assertPartNumberFree(

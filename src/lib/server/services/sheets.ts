@@ -14,13 +14,12 @@ import { Op, type Transaction } from 'sequelize';
 import { z } from 'zod';
 import { pageParam, pageSizeParam, sortParam, type ListPage } from '../../schemas/common';
 import type { ComponentRecord, SheetRecord } from '../../schemas/component';
-import type { Actor } from '../auth/types';
+import { isLead, type Actor } from '../auth/types';
 import { SpecSheet } from '../db/models';
 import { AppError, ForbiddenError, NotFoundError, ValidationError } from '../errors';
 import { components, sheets } from './components';
 import { inTransaction } from './write-path';
 
-const isLead = (a: Actor) => a.role === 'lead' || a.role === 'owner';
 const record = (row: SpecSheet) => sheets.toRecord(row as never) as SheetRecord;
 
 /** 409: an approved version never changes; carries it so the client can start the next draft. */

@@ -8,6 +8,7 @@ import { testCreate, testPatch } from '../../schemas/test';
 import type { Actor } from '../auth/types';
 import { Component, Job, SpecSheet, Test, Vehicle } from '../db/models';
 import { ForbiddenError, NotFoundError, ValidationError } from '../errors';
+import { mayOpenJob } from './access';
 import { defineAggregate } from './write-path';
 
 const FIELDS = [

@@ -57,6 +57,31 @@ export type AggregateDef<C extends z.ZodType, P extends z.ZodType> = {
 	jobIdOf?: (row: Row) => string | null;
 };
 
+/**
+ * Steps 5 and 6 of every write, and the aggregate's own follow-up: one audit row per
+ * changed field, the change-feed row, then `afterWrite` — all in the write's transaction.
+ */
+async function recordWrite(
+	def: AggregateDef<z.ZodType, z.ZodType>,
+	actor: Actor,
+	row: Row,
+	action: string,
+	rows: AuditRow[],
+	opId: string | null,
+	t: Transaction
+) {
+	await writeAudit(t, actor, def.entity, row.id, action, rows, opId);
+	await appendChange(t, actor.workshopId, {
+		entity: def.entity,
+		entityId: row.id,
+		version: row.version,
+		op: row.deletedAt ? 'delete' : 'upsert',
+		jobId: def.jobIdOf?.(row) ?? null,
+		record: def.toRecord(row)
+	});
+	await def.afterWrite?.(actor, row, action, rows, t);
+}
+
 /** Run `fn` in the given transaction, or in a new one. */
 export async function inTransaction<T>(
 	t: Transaction | undefined,
@@ -101,25 +126,8 @@ export function defineAggregate<C extends z.ZodType, P extends z.ZodType>(def: A
 		return row;
 	}
 
-	async function record(
-		actor: Actor,
-		row: Row,
-		action: string,
-		rows: AuditRow[],
-		t: Transaction,
-		o: WriteOptions
-	) {
-		await writeAudit(t, actor, def.entity, row.id, action, rows, o.opId ?? null);
-		await appendChange(t, actor.workshopId, {
-			entity: def.entity,
-			entityId: row.id,
-			version: row.version,
-			op: row.deletedAt ? 'delete' : 'upsert',
-			jobId: def.jobIdOf?.(row) ?? null,
-			record: def.toRecord(row)
-		});
-		await def.afterWrite?.(actor, row, action, rows, t);
-	}
+	const record = (actor: Actor, row: Row, action: string, rows: AuditRow[], t: Transaction, o: WriteOptions) =>
+		recordWrite(def, actor, row, action, rows, o.opId ?? null, t);
 
 	return {
 		entity: def.entity,
@@ -280,16 +288,7 @@ export async function persistMerged(
 	}
 	if (w.feed) {
 		const action = !w.row ? 'create' : w.deleted ? 'delete' : 'update';
-		await writeAudit(t, actor, agg.def.entity, row.id, action, w.changed, opId);
-		await appendChange(t, actor.workshopId, {
-			entity: agg.def.entity,
-			entityId: row.id,
-			version: row.version,
-			op: w.feed,
-			jobId: agg.def.jobIdOf?.(row) ?? null,
-			record: agg.def.toRecord(row)
-		});
-		await agg.def.afterWrite?.(actor, row, action, w.changed, t);
+		await recordWrite(agg.def, actor, row, action, w.changed, opId, t);
 	}
 	return agg.def.toRecord(row);
 }

@@ -14,8 +14,9 @@ import { evaluateReading, meterFor, sameResult, type CheckSpec, type Temperature
 import { readingCreate, signoffCreate, sparkTestCreate, swapTestCreate } from '../../schemas/records';
 import type { Op, PushResult, Reason } from '../../sync/protocol';
 import { stringifyNumbers } from '../../sync/json';
-import type { Actor } from '../auth/types';
+import { isLead, type Actor } from '../auth/types';
 import { nextSeq, rawBatch, rawQuery, sqlDateTime, WITH_IDS } from '../db/feed';
+import { mayOpenJob } from '../services/access';
 import { APPEND_TABLES, type StoredAppendEntity } from './append-tables';
 
 type Ctx = { actor: Actor; t: Transaction };
@@ -39,7 +40,6 @@ const meterOf = (test: TestInfo, rangeLabel: string | null) => {
 type Prepared = { op: Op; table: string; columns: Record<string, unknown>; mismatch?: { device: string; server: string } };
 
 const SCHEMAS = { reading: readingCreate, spark_test: sparkTestCreate, swap_test: swapTestCreate, signoff: signoffCreate };
-const isLead = (a: Actor) => a.role === 'lead' || a.role === 'owner';
 const reject = (op: Op, reason: Reason, message?: string) =>
 	({ opId: op.opId, status: 'rejected', reason, ...(message ? { message } : {}) }) as PushResult;
 
@@ -91,7 +91,7 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 	const ids = (k: string) => [...new Set(parsed.flatMap((p) => ('f' in p && p.f![k] ? [p.f![k] as string] : [])))];
 	const tests = await loadTests(ids('testId'), ctx);
 	const jobs = await loadJobs(ids('jobId'), ctx);
-	const mine = (assignee: string | null) => isLead(ctx.actor) || assignee === ctx.actor.userId;
+	const mine = (assigneeId: string | null) => mayOpenJob(ctx.actor, { assigneeId });
 	return parsed.map((p): Prepared | PushResult => {
 		if (!('f' in p) || !p.f) return reject(p.op, 'invalid', (p as { error: string }).error);
 		const { op, f } = p;
@@ -237,4 +237,3 @@ export async function applyAppendOps(actor: Actor, ops: Op[], t: Transaction): P
 	return prepared.map((p) => ('table' in p ? { opId: p.op.opId, status: 'applied', version: 1 } : p));
 }
 
-export { APPEND_TABLES };

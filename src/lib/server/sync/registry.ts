@@ -3,7 +3,7 @@
  * write path) and who may write it. Append-only entities live in `append.ts`.
  */
 import type { Transaction } from 'sequelize';
-import type { Actor } from '../auth/types';
+import { isLead, type Actor } from '../auth/types';
 import { Job } from '../db/models';
 import { components, sheets } from '../services/components';
 import * as customers from '../services/customers';
@@ -22,7 +22,6 @@ export const AGGREGATES = {
 } as const;
 export type MutableEntity = keyof typeof AGGREGATES;
 
-const isLead = (a: Actor) => a.role === 'lead' || a.role === 'owner';
 
 /**
  * Whether `actor` may apply `op` to a record (`row` is the stored one, or null for a new

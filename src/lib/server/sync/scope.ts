@@ -10,14 +10,13 @@ import type { Actor } from '../auth/types';
 import { db } from '../db';
 import { appendChange } from '../db/feed';
 import { Customer, Job, Test, Vehicle } from '../db/models';
-import { parseNumbers } from '../../sync/json';
 import type { SessionUser } from '../auth/types';
 import { APPEND_TABLES } from './append-tables';
 import { appendRecord } from './records';
 
 export type FeedRow = { seq: number; entity: string; entityId: string; version: number; op: 'upsert' | 'delete' | 'evict'; jobId: string | null; audience: string | null; record: Record<string, unknown> | null };
 
-export const seesWorkshop = (u: Pick<SessionUser, 'role'>) => u.role === 'lead' || u.role === 'owner';
+export { isLead as seesWorkshop } from '../auth/types';
 
 /** The ids a technician's pull is scoped to. */
 export async function scopeOf(user: SessionUser) {
@@ -77,4 +76,3 @@ export async function onJobReassigned(actor: Actor, jobId: string, from: string 
 	}
 }
 
-export { parseNumbers };

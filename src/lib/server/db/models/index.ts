@@ -6,6 +6,7 @@
 import { DataTypes, Model, type CreationOptional, type Sequelize } from 'sequelize';
 import { COMPONENT_KINDS } from '../../../schemas/component';
 import { JOB_STATUSES, type JobStatus } from '../../../schemas/job';
+import { jsonText } from './json-text';
 import { initTest, Test } from './test';
 export { Test };
 
@@ -203,19 +204,6 @@ const syncAttrs = () => ({
 	updatedBy: a.uuidNull,
 	deviceId: str(64, true),
 	deviceTime: a.dateNull
-});
-
-/** JSON stored as text: parsed on read, serialised on write. */
-const jsonText = (field: string) => ({
-	type: DataTypes.TEXT('long'),
-	allowNull: true,
-	get(this: Model) {
-		const raw = this.getDataValue(field as never) as string | null;
-		return raw == null ? null : JSON.parse(raw);
-	},
-	set(this: Model, v: unknown) {
-		this.setDataValue(field as never, (v == null ? null : JSON.stringify(v)) as never);
-	}
 });
 
 /** Register every model on `s`. */

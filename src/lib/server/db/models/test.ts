@@ -1,5 +1,6 @@
 /** The `tests` table: one component tested on one job, with its pinned snapshot. */
 import { DataTypes, Model, type Sequelize } from 'sequelize';
+import { jsonText } from './json-text';
 
 export class Test extends Model {
 	declare id: string;
@@ -20,18 +21,6 @@ export class Test extends Model {
 	declare deletedAt: Date | null;
 }
 
-const json = (field: string) => ({
-	type: DataTypes.TEXT,
-	allowNull: true,
-	get(this: Model) {
-		const raw = this.getDataValue(field as never) as string | null;
-		return raw == null ? null : JSON.parse(raw);
-	},
-	set(this: Model, v: unknown) {
-		this.setDataValue(field as never, (v == null ? null : JSON.stringify(v)) as never);
-	}
-});
-
 export function initTest(s: Sequelize, syncAttrs: () => Record<string, object>) {
 	Test.init(
 		{
@@ -43,8 +32,8 @@ export function initTest(s: Sequelize, syncAttrs: () => Record<string, object>) 
 			partNumber: { type: DataTypes.STRING(60), allowNull: true },
 			position: { type: DataTypes.STRING(20), allowNull: true },
 			technicianId: { type: DataTypes.UUID, allowNull: true },
-			meter: json('meter'),
-			temperature: json('temperature'),
+			meter: jsonText('meter'),
+			temperature: jsonText('temperature'),
 			state: { type: DataTypes.ENUM('in_progress', 'done', 'abandoned'), allowNull: false, defaultValue: 'in_progress' },
 			notes: { type: DataTypes.TEXT, allowNull: true }
 		},

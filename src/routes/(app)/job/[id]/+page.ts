@@ -1,5 +1,6 @@
 import { error } from '@sveltejs/kit';
-import { listUnderJob as listUnder, readJob } from '$lib/local/jobs';
+import { readJob } from '$lib/local/jobs';
+import { listByJob } from '$lib/sync/local-db';
 import { local } from '$lib/sync/session';
 
 export async function load({ params, parent }) {
@@ -7,6 +8,6 @@ export async function load({ params, parent }) {
 	const { db } = await local();
 	const job = await readJob(db, params.id);
 	if (!job) error(404, { message: 'This job is not on this phone. Sync with signal, or ask the workshop to assign it to you.' });
-	const under = await listUnder(db, params.id);
+	const under = await listByJob(db, params.id);
 	return { me, job, tests: under.filter((r) => r.entity === 'test'), sparks: under.filter((r) => r.entity === 'spark_test'), swaps: under.filter((r) => r.entity === 'swap_test') };
 }
