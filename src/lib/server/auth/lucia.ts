@@ -4,8 +4,9 @@
  * lucia extends one that is used in its second half (`session.fresh`).
  */
 import { Lucia, TimeSpan, type Adapter, type DatabaseSession, type DatabaseUser } from 'lucia';
-import { Op } from 'sequelize';
-import { Session, User, Workshop } from '../db/models';
+import { Op, QueryTypes } from 'sequelize';
+import { db } from '../db';
+import { Session } from '../db/models';
 import type { SessionUser } from './types';
 
 const toDbSession = (s: Session): DatabaseSession => ({
@@ -15,24 +16,48 @@ const toDbSession = (s: Session): DatabaseSession => ({
 	attributes: {}
 });
 
+type SessionRow = {
+	id: string;
+	user_id: string;
+	expires_ms: number | string;
+	uid: string | null;
+	active: number | boolean | null;
+	workshop_id: string | null;
+	email: string | null;
+	name: string | null;
+	role: string | null;
+	workshop_name: string | null;
+};
+
 export const sessionAdapter: Adapter = {
+	/** One query per request (every API call reads its session): session, user and workshop. */
 	async getSessionAndUser(sessionId) {
-		const s = await Session.findByPk(sessionId);
-		if (!s) return [null, null];
-		const u = await User.findByPk(s.userId);
-		if (!u || !u.active) return [toDbSession(s), null];
-		const w = await Workshop.findByPk(u.workshopId);
+		const [row] = await db().query<SessionRow>(
+			`SELECT s.id, s.user_id, UNIX_TIMESTAMP(s.expires_at) * 1000 AS expires_ms,
+			        u.id AS uid, u.active, u.workshop_id, u.email, u.name, u.role, w.name AS workshop_name
+			 FROM sessions s LEFT JOIN users u ON u.id = s.user_id LEFT JOIN workshops w ON w.id = u.workshop_id
+			 WHERE s.id = ?`,
+			{ replacements: [sessionId], type: QueryTypes.SELECT }
+		);
+		if (!row) return [null, null];
+		const session: DatabaseSession = {
+			id: row.id,
+			userId: row.user_id,
+			expiresAt: new Date(Number(row.expires_ms)),
+			attributes: {}
+		};
+		if (!row.uid || !Number(row.active)) return [session, null];
 		const user: DatabaseUser = {
-			id: u.id,
+			id: row.uid,
 			attributes: {
-				workshopId: u.workshopId,
-				workshopName: w?.name ?? '',
-				email: u.email,
-				name: u.name,
-				role: u.role
+				workshopId: row.workshop_id!,
+				workshopName: row.workshop_name ?? '',
+				email: row.email!,
+				name: row.name!,
+				role: row.role as SessionUser['role']
 			}
 		};
-		return [toDbSession(s), user];
+		return [session, user];
 	},
 	async getUserSessions(userId) {
 		return (await Session.findAll({ where: { userId } })).map(toDbSession);

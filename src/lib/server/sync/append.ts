@@ -15,9 +15,10 @@ import { readingCreate, signoffCreate, sparkTestCreate, swapTestCreate } from '.
 import type { Op, PushResult, Reason } from '../../sync/protocol';
 import { stringifyNumbers } from '../../sync/json';
 import { isLead, type Actor } from '../auth/types';
-import { nextSeq, rawBatch, rawQuery, sqlDateTime, WITH_IDS } from '../db/feed';
+import { nextSeq, rawBatch, rawQuery, sqlDateTime } from '../db/feed';
 import { mayOpenJob } from '../services/access';
 import { APPEND_TABLES, type StoredAppendEntity } from './append-tables';
+import { quickReadingCreate } from './quick-parse';
 
 type Ctx = { actor: Actor; t: Transaction };
 type TestRow = { id: string; job_id: string; assignee_id: string | null; technician_id: string | null; sheet_id: string | null; meter: string | null; temperature: string | null; deleted: number | bigint; checks: string | null };
@@ -37,7 +38,26 @@ const meterOf = (test: TestInfo, rangeLabel: string | null) => {
 	if (!m) test.meters.set(rangeLabel, (m = meterFor(test.meterSetup, rangeLabel)));
 	return m;
 };
-type Prepared = { op: Op; table: string; columns: Record<string, unknown>; mismatch?: { device: string; server: string } };
+/**
+ * An op ready to insert: its row in the order of `COLUMNS[table]` (the seq and creation time
+ * are added when the rows are sent). `same` is what makes a repeated create of a reading the
+ * same record (its check and samples).
+ */
+type Prepared = { op: Op; table: AppendTable; row: unknown[]; same: string; mismatch?: { device: string; server: string } };
+type AppendTable = (typeof APPEND_TABLES)[StoredAppendEntity];
+
+/** The first columns of every append-only row. */
+const BASE = ['workshop_id', 'id', 'op_id', 'created_by', 'device_id', 'device_time', 'job_id', 'test_id'] as const;
+/**
+ * Each table's columns, in the order its rows are built. Rows are plain arrays, not objects:
+ * building a 15-key object by spreading another costs more than the rest of a reading.
+ */
+const COLUMNS: Record<AppendTable, readonly string[]> = {
+	readings: [...BASE, 'check_key', 'position', 'samples', 'range_label', 'device_result', 'server_result', 'mismatch'],
+	signoffs: [...BASE, 'mode', 'note'],
+	spark_tests: [...BASE, 'note', 'position', 'gap_mm', 'outcome'],
+	swap_tests: [...BASE, 'note', 'from_position', 'to_position', 'before_counts', 'after_counts', 'conclusion']
+};
 
 const SCHEMAS = { reading: readingCreate, spark_test: sparkTestCreate, swap_test: swapTestCreate, signoff: signoffCreate };
 const reject = (op: Op, reason: Reason, message?: string) =>
@@ -85,6 +105,8 @@ async function loadJobs(ids: string[], { actor, t }: Ctx) {
 async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> {
 	const parsed = ops.map((op) => {
 		if (op.entity === 'photo') return { op, error: 'Photos are not taken yet' };
+		const quick = op.entity === 'reading' ? quickReadingCreate(op.fields) : null;
+		if (quick) return { op, f: quick as Record<string, unknown> };
 		const r = SCHEMAS[op.entity as StoredAppendEntity].safeParse(op.fields);
 		return r.success ? { op, f: r.data as Record<string, unknown> } : { op, error: r.error.issues[0].path.join('.') + ': ' + r.error.issues[0].message };
 	});
@@ -95,13 +117,14 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 	return parsed.map((p): Prepared | PushResult => {
 		if (!('f' in p) || !p.f) return reject(p.op, 'invalid', (p as { error: string }).error);
 		const { op, f } = p;
-		const base = { workshop_id: ctx.actor.workshopId, id: op.entityId, op_id: op.opId, created_by: ctx.actor.userId, device_id: ctx.actor.deviceId, device_time: sqlDateTime(new Date(op.deviceTime)) };
+		/** The `BASE` columns, then the table's own. */
+		const row = (jobId: unknown, testId: unknown, ...rest: unknown[]) => [ctx.actor.workshopId, op.entityId, op.opId, ctx.actor.userId, ctx.actor.deviceId, deviceDateTime(op.deviceTime), jobId, testId, ...rest];
 		if (op.entity === 'reading' || op.entity === 'signoff') {
 			const test = tests.get(f.testId as string);
 			if (!test || Number(test.deleted) || !mine(test.assignee_id)) return reject(op, 'not_found');
 			if (op.entity === 'signoff') {
 				if (!isLead(ctx.actor)) return reject(op, 'forbidden', 'Only a lead signs off');
-				return { op, table: 'signoffs', columns: { ...base, job_id: test.job_id, test_id: test.id, mode: f.mode, note: f.note ?? null } };
+				return { op, table: 'signoffs', row: row(test.job_id, test.id, f.mode, f.note ?? null), same: '' };
 			}
 			const checks = test.sheet_id ? test.sheetChecks : null;
 			const check = checks?.find((c) => c.key === f.checkKey);
@@ -110,43 +133,34 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 			const server = evaluateReading(spec, f.samples as never, meterOf(test, (f.rangeLabel as string | null | undefined) ?? null), test.tempSnap);
 			const device = f.deviceResult as { value: number | null; verdict: string } | null | undefined;
 			const mismatch = device != null && !sameResult(device as never, server);
-			return {
+			const samples = JSON.stringify(f.samples);
+			const prepared: Prepared = {
 				op,
 				table: 'readings',
-				columns: {
-					...base,
-					job_id: test.job_id,
-					test_id: test.id,
-					check_key: f.checkKey,
-					position: f.position ?? null,
-					samples: JSON.stringify(f.samples),
-					range_label: f.rangeLabel ?? null,
-					device_result: device ? toJson(device) : null,
-					server_result: toJson(server),
-					mismatch: mismatch ? 1 : 0
-				},
-				...(mismatch ? { mismatch: { device: String(device!.verdict), server: server.verdict } } : {})
+				row: row(test.job_id, test.id, f.checkKey, f.position ?? null, samples, f.rangeLabel ?? null, device ? toJson(device) : null, toJson(server), mismatch ? 1 : 0),
+				same: `${f.checkKey}|${samples}`
 			};
+			if (mismatch) prepared.mismatch = { device: String(device!.verdict), server: server.verdict };
+			return prepared;
 		}
 		if (!jobs.has(f.jobId as string) || !mine(jobs.get(f.jobId as string)!)) return reject(op, 'not_found');
-		const common = { ...base, job_id: f.jobId, test_id: f.testId ?? null, note: f.note ?? null };
+		const [jobId, testId, note] = [f.jobId, f.testId ?? null, f.note ?? null];
 		if (op.entity === 'spark_test') {
-			return { op, table: 'spark_tests', columns: { ...common, position: f.position, gap_mm: f.gapMm, outcome: f.outcome } };
+			return { op, table: 'spark_tests', row: row(jobId, testId, note, f.position, f.gapMm, f.outcome), same: '' };
 		}
 		return {
 			op,
 			table: 'swap_tests',
-			columns: {
-				...common,
-				from_position: f.fromPosition,
-				to_position: f.toPosition,
-				before_counts: JSON.stringify(f.beforeCounts),
-				after_counts: JSON.stringify(f.afterCounts),
-				conclusion: f.conclusion
-			}
+			row: row(jobId, testId, note, f.fromPosition, f.toPosition, JSON.stringify(f.beforeCounts), JSON.stringify(f.afterCounts), f.conclusion),
+			same: ''
 		};
 	});
 }
+
+/** An ISO device time as DATETIME(3) text in UTC; a plain `…T…Z` time without the Date round trip. */
+const ISO_UTC = /^\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{3}Z$/;
+const deviceDateTime = (iso: string) =>
+	ISO_UTC.test(iso) ? `${iso.slice(0, 10)} ${iso.slice(11, 23)}` : sqlDateTime(new Date(iso));
 
 /** ±Infinity anywhere inside a plain JSON value (an OL reading is Infinity). */
 function hasInfinity(v: unknown): boolean {
@@ -164,10 +178,10 @@ const toJson = (v: unknown) => (hasInfinity(v) ? stringifyNumbers(v) : JSON.stri
  * built before the seqs are known. Each row comes with its place among the applied ops;
  * `run(first)` gives it seq `first + place` and sends the rows.
  */
-function insertRows(table: string, rows: { place: number; columns: Record<string, unknown> }[], t: Transaction) {
-	const cols = ['seq', ...Object.keys(rows[0].columns)];
+function insertRows(table: AppendTable, rows: { place: number; row: unknown[] }[], t: Transaction) {
+	const cols = ['seq', ...COLUMNS[table]];
 	const sql = `INSERT INTO ${table} (${cols.join(', ')}, created_at) VALUES (${cols.map(() => '?').join(', ')}, UTC_TIMESTAMP(3))`;
-	const values = rows.map((r) => cols.map((c, i) => (i === 0 ? 0 : r.columns[c])));
+	const values = rows.map((r) => [0, ...r.row]);
 	return (first: number) => {
 		rows.forEach((r, k) => (values[k][0] = first + r.place));
 		return rawBatch(t, sql, values);
@@ -180,30 +194,35 @@ function insertRows(table: string, rows: { place: number; columns: Record<string
  * (`not_found` for another workshop's record).
  */
 async function refuseTakenIds(prepared: (Prepared | PushResult)[], { actor, t }: Ctx) {
-	const ids = prepared.flatMap((p) => ('table' in p ? [p.op.entityId] : []));
-	if (!ids.length) return prepared;
+	const byTable = new Map<AppendTable, string[]>();
+	for (const p of prepared) {
+		if (!('table' in p)) continue;
+		const list = byTable.get(p.table);
+		if (list) list.push(p.op.entityId);
+		else byTable.set(p.table, [p.op.entityId]);
+	}
+	if (!byTable.size) return prepared;
+	// Each entity's ids in its own table, as a mutable create looks only in its own.
 	const taken = new Map<string, { workshop_id: string; same: string }>();
-	const tables = Object.values(APPEND_TABLES);
-	const rows = await rawQuery<{ id: string; workshop_id: string; same: string }[]>(
+	const rows = await rawQuery<{ tbl: string; id: string; workshop_id: string; same: string }[]>(
 		t,
-		WITH_IDS +
-			tables
-				.map((table) => `SELECT x.id, x.workshop_id, ${table === 'readings' ? "CONCAT(x.check_key, '|', x.samples)" : "''"} AS same FROM ids JOIN ${table} x ON x.id = ids.v`)
-				.join(' UNION ALL '),
-		[JSON.stringify(ids)]
+		[...byTable.keys()]
+			.map((table) => `SELECT '${table}' AS tbl, x.id, x.workshop_id, ${table === 'readings' ? "CONCAT(x.check_key, '|', x.samples)" : "''"} AS same FROM ${table} x WHERE x.id IN (?)`)
+			.join(' UNION ALL '),
+		[...byTable.values()]
 	);
-	for (const r of rows) taken.set(r.id, r);
+	for (const r of rows) taken.set(`${r.tbl}|${r.id}`, r);
 	const seen = new Set<string>();
 	return prepared.map((p) => {
 		if (!('table' in p)) return p;
-		const hit = taken.get(p.op.entityId);
+		const key = `${p.table}|${p.op.entityId}`;
+		const hit = taken.get(key);
 		if (hit && hit.workshop_id !== actor.workshopId) return reject(p.op, 'not_found');
 		if (hit) {
-			const same = p.table === 'readings' ? `${p.columns.check_key}|${p.columns.samples}` : '';
-			return hit.same === same ? ({ opId: p.op.opId, status: 'applied', version: 1 } as PushResult) : reject(p.op, 'id_conflict');
+			return hit.same === p.same ? ({ opId: p.op.opId, status: 'applied', version: 1 } as PushResult) : reject(p.op, 'id_conflict');
 		}
-		if (seen.has(p.op.entityId)) return reject(p.op, 'id_conflict');
-		seen.add(p.op.entityId);
+		if (seen.has(key)) return reject(p.op, 'id_conflict');
+		seen.add(key);
 		return p;
 	});
 }
@@ -215,11 +234,11 @@ export async function applyAppendOps(actor: Actor, ops: Op[], t: Transaction): P
 	const ok = prepared.filter((p): p is Prepared => 'table' in p);
 	if (ok.length) {
 		// Seqs follow the order of the ops: the k-th applied op gets the block's first + k.
-		const byTable = new Map<string, { place: number; columns: Record<string, unknown> }[]>();
+		const byTable = new Map<AppendTable, { place: number; row: unknown[] }[]>();
 		ok.forEach((p, place) => {
 			const list = byTable.get(p.table);
-			if (list) list.push({ place, columns: p.columns });
-			else byTable.set(p.table, [{ place, columns: p.columns }]);
+			if (list) list.push({ place, row: p.row });
+			else byTable.set(p.table, [{ place, row: p.row }]);
 		});
 		const inserts = [...byTable].map(([table, rows]) => insertRows(table, rows, t));
 		const mism = ok.filter((p) => p.mismatch);

@@ -6,28 +6,34 @@
  * Both run once per push, on the transaction's driver connection (the sync hot path).
  */
 import type { Transaction } from 'sequelize';
-import { rawQuery, WITH_IDS } from '../db/feed';
+import { rawQuery } from '../db/feed';
 import type { Actor } from '../auth/types';
 import type { Op, PushResult } from '../../sync/protocol';
-import { APPEND_TABLES } from './append-tables';
+import { APPEND_TABLES, type StoredAppendEntity } from './append-tables';
 
 /**
- * First answers for the opIds already seen, by opId: one query over the ledger and the
- * append-only tables; a ledger answer wins over a row.
+ * First answers for the ops already seen, by opId: one query over the ledger (every opId)
+ * and, for append-only ops, the table of their own entity (an opId names one op, so it is
+ * looked for where that op's record lives); a ledger answer wins over a row.
  */
-export async function findSeen(opIds: string[], t: Transaction): Promise<Map<string, PushResult>> {
+export async function findSeen(ops: Pick<Op, 'opId' | 'entity'>[], t: Transaction): Promise<Map<string, PushResult>> {
 	const seen = new Map<string, PushResult>();
-	if (!opIds.length) return seen;
-	const tables = Object.values(APPEND_TABLES);
-	const rows = await rawQuery<{ op_id: string; result: string | null }[]>(
-		t,
-		WITH_IDS +
-			[
-				'SELECT s.op_id, s.result FROM ids JOIN sync_ops s ON s.op_id = ids.v',
-				...tables.map((table) => `SELECT x.op_id, NULL FROM ids JOIN ${table} x ON x.op_id = ids.v`)
-			].join(' UNION ALL '),
-		[JSON.stringify(opIds)]
-	);
+	if (!ops.length) return seen;
+	const byTable = new Map<string, string[]>();
+	for (const op of ops) {
+		const table = APPEND_TABLES[op.entity as StoredAppendEntity];
+		if (!table) continue;
+		const list = byTable.get(table);
+		if (list) list.push(op.opId);
+		else byTable.set(table, [op.opId]);
+	}
+	const parts = ['SELECT s.op_id, s.result FROM sync_ops s WHERE s.op_id IN (?)'];
+	const values: unknown[] = [ops.map((o) => o.opId)];
+	for (const [table, ids] of byTable) {
+		parts.push(`SELECT x.op_id, NULL FROM ${table} x WHERE x.op_id IN (?)`);
+		values.push(ids);
+	}
+	const rows = await rawQuery<{ op_id: string; result: string | null }[]>(t, parts.join(' UNION ALL '), values);
 	for (const r of rows) if (r.result !== null) seen.set(r.op_id, JSON.parse(r.result));
 	for (const r of rows) {
 		if (r.result === null && !seen.has(r.op_id)) seen.set(r.op_id, { opId: r.op_id, status: 'applied', version: 1 });

@@ -45,7 +45,7 @@ export async function pushOps(user: SessionUser, body: PushBody): Promise<PushRe
 			 ON DUPLICATE KEY UPDATE user_id = VALUES(user_id), last_push_at = VALUES(last_push_at)`,
 			{ replacements: [body.deviceId, user.workshopId, user.id], type: QueryTypes.INSERT, transaction: t }
 		);
-		const seen = await findSeen([...new Set(body.ops.map((o) => o.opId))], t);
+		const seen = await findSeen(body.ops, t);
 		const results: PushResult[] = [];
 		const toRemember: { op: Op; result: PushResult }[] = [];
 		const actorFor = (op: Op) => ({
