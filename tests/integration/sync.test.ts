@@ -75,6 +75,46 @@ describe('push', () => {
 		expect(await countRows()).toBe(before);
 	});
 
+	it('answers a half-stored batch sent again with duplicates for the stored half and applies the rest once', async () => {
+		// A phone lost the answer to a push that stored its first readings, then sends them
+		// again with new ones; a reading with a taken id under a new op id comes along too.
+		const t = newTest();
+		const stored = [reading(t.entityId, 0.5), reading(t.entityId, 0.51)];
+		expect((await push(tech, 'phone-a', [t, ...stored])).map((r) => r.status)).toEqual(['applied', 'applied', 'applied']);
+		const fresh = [reading(t.entityId, 0.52), reading(t.entityId, 0.53)];
+		const sameRecord = { ...stored[0], opId: uuidv7() };
+		const otherFields = { ...stored[1], opId: uuidv7(), fields: { ...stored[1].fields, samples: [{ value: 0.9, unit: 'Ω' }] } };
+		const count = async () => Number((await db().query<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE test_id = ?', { replacements: [t.entityId], type: QueryTypes.SELECT }))[0].n);
+		// The first op is new, so the batch goes in bulk first and the stored ones trip the unique keys.
+		const batch = [fresh[0], stored[0], stored[1], sameRecord, otherFields, fresh[1]];
+		const res = await push(tech, 'phone-a', batch);
+		expect(res.map((r) => r.status)).toEqual(['applied', 'duplicate', 'duplicate', 'applied', 'rejected', 'applied']);
+		expect(res.map((r) => r.firstStatus)).toEqual([undefined, 'applied', 'applied', undefined, undefined, undefined]);
+		expect(res[4].reason).toBe('id_conflict');
+		expect(await count()).toBe(4);
+		// And once more (now the first op is stored, so the lookups come first): all duplicates.
+		const again = await push(tech, 'phone-a', batch);
+		expect(again.map((r) => r.status)).toEqual(Array(6).fill('duplicate'));
+		expect(again.map((r) => r.firstStatus)).toEqual(['applied', 'applied', 'applied', 'applied', 'rejected', 'applied']);
+		expect(await count()).toBe(4);
+	});
+
+	it('answers not_found for a reading whose id another workshop holds, and still applies its neighbours', async () => {
+		const t = newTest();
+		await push(tech, 'phone-a', [t]);
+		const foreignTest = (await import('../../src/lib/server/services/tests')).tests;
+		const otherJob = (await jobs.create(other.users.lead.actor, { complaint: 'Elsewhere' })).id as string;
+		const ot = await foreignTest.create(other.users.lead.actor, { jobId: otherJob, position: '1' });
+		const theirs = reading(ot.id as string, 0.5);
+		const otherLead = new Client(base, `10.7.1.${++n}`);
+		expect((await otherLead.signIn(other.users.lead.email, TEST_PASSWORD)).status).toBe(303);
+		expect((await push(otherLead, 'tablet-x', [theirs]))[0].status).toBe('applied');
+		const mine = reading(t.entityId, 0.5);
+		const res = await push(tech, 'phone-a', [mine, { ...reading(t.entityId, 0.5), entityId: theirs.entityId }, reading(t.entityId, 0.51)]);
+		expect(res.map((r) => r.status)).toEqual(['applied', 'rejected', 'applied']);
+		expect(res[1].reason).toBe('not_found');
+	});
+
 	it('lets two devices editing different fields of one job both land', async () => {
 		const job = await Job.findByPk(jobId);
 		const v = job!.version;

@@ -219,7 +219,10 @@ async function refuseTakenIds(prepared: (Prepared | PushResult)[], { actor, t }:
 		const hit = taken.get(key);
 		if (hit && hit.workshop_id !== actor.workshopId) return reject(p.op, 'not_found');
 		if (hit) {
-			return hit.same === p.same ? ({ opId: p.op.opId, status: 'applied', version: 1 } as PushResult) : reject(p.op, 'id_conflict');
+			if (hit.same !== p.same) return reject(p.op, 'id_conflict');
+			const same: PushResult = { opId: p.op.opId, status: 'applied', version: 1 };
+			withoutRow.add(same);
+			return same;
 		}
 		if (seen.has(key)) return reject(p.op, 'id_conflict');
 		seen.add(key);
@@ -227,10 +230,29 @@ async function refuseTakenIds(prepared: (Prepared | PushResult)[], { actor, t }:
 	});
 }
 
-/** Apply consecutive append-only ops; one result per op, in order. */
-export async function applyAppendOps(actor: Actor, ops: Op[], t: Transaction): Promise<PushResult[]> {
+/**
+ * `applied` answers that stored no row (the same record was already there under another op
+ * id): nothing keeps their op id, so the caller puts them in the ledger.
+ */
+export const withoutRow = new WeakSet<PushResult>();
+
+/** A MariaDB duplicate-key error (ER_DUP_ENTRY), as a taken id or op id raises it. */
+export const isDuplicateKey = (e: unknown) => (e as { errno?: number } | null)?.errno === 1062;
+
+/**
+ * Apply consecutive append-only ops; one result per op, in order. With `checkIds: false`
+ * the ids are not looked up first: new ids are the rule, and a taken id or op id makes the
+ * INSERT fail with a duplicate key (`isDuplicateKey`), after which the caller rolls back to
+ * its savepoint and comes again with `checkIds: true`.
+ */
+export async function applyAppendOps(
+	actor: Actor,
+	ops: Op[],
+	t: Transaction,
+	{ checkIds = true }: { checkIds?: boolean } = {}
+): Promise<PushResult[]> {
 	const ctx = { actor, t };
-	const prepared = await refuseTakenIds(await prepare(ops, ctx), ctx);
+	const prepared = checkIds ? await refuseTakenIds(await prepare(ops, ctx), ctx) : await prepare(ops, ctx);
 	const ok = prepared.filter((p): p is Prepared => 'table' in p);
 	if (ok.length) {
 		// Seqs follow the order of the ops: the k-th applied op gets the block's first + k.

@@ -1,9 +1,10 @@
 /**
- * The sync operation ledger: the first answer per opId. Mutable ops and every rejection
- * are stored in `sync_ops`; an applied append-only record keeps its opId on its own row
- * (one row per reading), and its first answer is rebuilt from that row.
+ * The sync operation ledger: the first answer per opId. Mutable ops, every rejection and an
+ * append-only create that found its very record already stored under another op id are
+ * kept in `sync_ops`; an applied append-only record keeps its opId on its own row (one row
+ * per reading), and its first answer is rebuilt from that row (`findStored`).
  *
- * Both run once per push, on the transaction's driver connection (the sync hot path).
+ * These run on the transaction's driver connection (the sync hot path).
  */
 import type { Transaction } from 'sequelize';
 import { rawQuery } from '../db/feed';
@@ -12,13 +13,39 @@ import type { Op, PushResult } from '../../sync/protocol';
 import { APPEND_TABLES, type StoredAppendEntity } from './append-tables';
 
 /**
- * First answers for the ops already seen, by opId: one query over the ledger (every opId)
- * and, for append-only ops, the table of their own entity (an opId names one op, so it is
- * looked for where that op's record lives); a ledger answer wins over a row.
+ * First answers stored in the ledger for these opIds, by opId. With a `probe` (an
+ * append-only create), its own table is asked too, and `probeStored` says whether its record
+ * is there: the sign of a batch sent again, whose other records are likely stored as well.
  */
-export async function findSeen(ops: Pick<Op, 'opId' | 'entity'>[], t: Transaction): Promise<Map<string, PushResult>> {
+export async function findSeen(
+	opIds: string[],
+	t: Transaction,
+	probe?: Pick<Op, 'opId' | 'entity'>
+): Promise<{ seen: Map<string, PushResult>; probeStored: boolean }> {
 	const seen = new Map<string, PushResult>();
-	if (!ops.length) return seen;
+	const table = probe && APPEND_TABLES[probe.entity as StoredAppendEntity];
+	if (!opIds.length) return { seen, probeStored: false };
+	const rows = await rawQuery<{ op_id: string; result: string | null }[]>(
+		t,
+		'SELECT op_id, result FROM sync_ops WHERE op_id IN (?)' +
+			(table ? ` UNION ALL SELECT op_id, NULL FROM ${table} WHERE op_id = ?` : ''),
+		table ? [opIds, probe!.opId] : [opIds]
+	);
+	let probeStored = false;
+	for (const r of rows) {
+		if (r.result !== null) seen.set(r.op_id, JSON.parse(r.result));
+		else probeStored = true;
+	}
+	if (probeStored && !seen.has(probe!.opId)) seen.set(probe!.opId, { opId: probe!.opId, status: 'applied', version: 1 });
+	return { seen, probeStored };
+}
+
+/**
+ * The append-only ops whose record is already stored (an applied append-only op keeps its
+ * opId on its row, in the table of its own entity); their first answer was `applied`.
+ */
+export async function findStored(ops: Pick<Op, 'opId' | 'entity'>[], t: Transaction): Promise<Map<string, PushResult>> {
+	const stored = new Map<string, PushResult>();
 	const byTable = new Map<string, string[]>();
 	for (const op of ops) {
 		const table = APPEND_TABLES[op.entity as StoredAppendEntity];
@@ -27,18 +54,14 @@ export async function findSeen(ops: Pick<Op, 'opId' | 'entity'>[], t: Transactio
 		if (list) list.push(op.opId);
 		else byTable.set(table, [op.opId]);
 	}
-	const parts = ['SELECT s.op_id, s.result FROM sync_ops s WHERE s.op_id IN (?)'];
-	const values: unknown[] = [ops.map((o) => o.opId)];
-	for (const [table, ids] of byTable) {
-		parts.push(`SELECT x.op_id, NULL FROM ${table} x WHERE x.op_id IN (?)`);
-		values.push(ids);
-	}
-	const rows = await rawQuery<{ op_id: string; result: string | null }[]>(t, parts.join(' UNION ALL '), values);
-	for (const r of rows) if (r.result !== null) seen.set(r.op_id, JSON.parse(r.result));
-	for (const r of rows) {
-		if (r.result === null && !seen.has(r.op_id)) seen.set(r.op_id, { opId: r.op_id, status: 'applied', version: 1 });
-	}
-	return seen;
+	if (!byTable.size) return stored;
+	const rows = await rawQuery<{ op_id: string }[]>(
+		t,
+		[...byTable.keys()].map((table) => `SELECT op_id FROM ${table} WHERE op_id IN (?)`).join(' UNION ALL '),
+		[...byTable.values()]
+	);
+	for (const r of rows) stored.set(r.op_id, { opId: r.op_id, status: 'applied', version: 1 });
+	return stored;
 }
 
 /** Store first answers (never `server_error`, so that a retry may still apply). */

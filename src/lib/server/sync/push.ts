@@ -3,10 +3,10 @@
  *  1. one transaction for the batch; first lock this device's row in `sync_devices` (a
  *     second push from the same device — a retry sent while the first is still running —
  *     waits until the first commits, so it sees the first's ops as duplicates); then look
- *     up every opId in the ledger;
+ *     up every opId in the ledger (`sync_ops`);
  *  2. ops in the order sent: a seen opId answers `duplicate` with the first answer and
- *     changes nothing; a run of append-only creates is applied in bulk inside one savepoint
- *     (if that fails unexpectedly, op by op, each in its own savepoint); a mutable op is
+ *     changes nothing; a run of append-only creates is applied in bulk inside one savepoint,
+ *     trusting the unique keys to catch a stored record (see `applyRun`); a mutable op is
  *     applied inside its own savepoint through its aggregate's service;
  *  3. an op that throws is rolled back alone and answered `rejected: server_error`;
  *  4. the first answers go into the ledger in the same transaction as their effects.
@@ -15,8 +15,8 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import type { SessionUser } from '../auth/types';
 import { db } from '../db';
 import { isAppendOnly, type Op, type PushBody, type PushResult } from '../../sync/protocol';
-import { applyAppendOps } from './append';
-import { findSeen, remember } from './ledger';
+import { applyAppendOps, isDuplicateKey, withoutRow } from './append';
+import { findSeen, findStored, remember } from './ledger';
 import { applyMutableOp } from './mutable';
 
 const savepoint = <T>(t: Transaction, fn: (sp: Transaction) => Promise<T>) =>
@@ -24,19 +24,65 @@ const savepoint = <T>(t: Transaction, fn: (sp: Transaction) => Promise<T>) =>
 
 const failed = (op: Op): PushResult => ({ opId: op.opId, status: 'rejected', reason: 'server_error' });
 
-async function applyRun(actor: Parameters<typeof applyAppendOps>[0], run: Op[], t: Transaction) {
-	try {
-		return await savepoint(t, (sp) => applyAppendOps(actor, run, sp));
-	} catch (e) {
-		if (run.length === 1) {
+type AppendActor = Parameters<typeof applyAppendOps>[0];
+
+/** A run of append-only creates, op by op, each in its own savepoint (after a failure). */
+async function oneByOne(actor: AppendActor, run: Op[], t: Transaction) {
+	const out: PushResult[] = [];
+	for (const op of run) {
+		try {
+			out.push(...(await savepoint(t, (sp) => applyAppendOps(actor, [op], sp))));
+		} catch (e) {
 			console.error('sync: append op failed', e);
-			return [failed(run[0])];
+			out.push(failed(op));
 		}
-		const out: PushResult[] = [];
-		for (const op of run) out.push(...(await applyRun(actor, [op], t)));
-		return out;
 	}
+	return out;
 }
+
+/**
+ * A run of append-only creates (none of them in the ledger): first in bulk without looking
+ * the ids up — new records are the rule, and the tables' unique keys refuse a taken id or
+ * op id. On a duplicate key the savepoint is rolled back and the run comes again with the
+ * lookups: ops whose record is stored answer `duplicate`, the rest go through the id checks.
+ * When the batch looks sent again (`likelyStored`), the lookups come first. Any other
+ * failure, or a second one: op by op.
+ */
+async function applyRun(actor: AppendActor, run: Op[], t: Transaction, likelyStored: boolean): Promise<PushResult[]> {
+	if (!likelyStored) {
+		try {
+			return await savepoint(t, (sp) => applyAppendOps(actor, run, sp, { checkIds: false }));
+		} catch (e) {
+			if (!isDuplicateKey(e)) {
+				console.error('sync: append run failed', e);
+				return run.length === 1 ? [failed(run[0])] : oneByOne(actor, run, t);
+			}
+		}
+	}
+	const stored = await findStored(run, t);
+	const fresh = run.filter((op) => !stored.has(op.opId));
+	let applied: PushResult[] = [];
+	if (fresh.length) {
+		try {
+			applied = await savepoint(t, (sp) => applyAppendOps(actor, fresh, sp));
+		} catch (e) {
+			console.error('sync: append run failed', e);
+			applied = await oneByOne(actor, fresh, t);
+		}
+	}
+	let k = 0;
+	return run.map((op) => {
+		const first = stored.get(op.opId);
+		return first ? duplicateOf(first) : applied[k++];
+	});
+}
+
+/** The answer to an op seen before: its first answer, marked `duplicate`. */
+const duplicateOf = (first: PushResult): PushResult => ({
+	...first,
+	status: 'duplicate',
+	firstStatus: first.status as never
+});
 
 export async function pushOps(user: SessionUser, body: PushBody): Promise<PushResult[]> {
 	return db().transaction(async (t) => {
@@ -45,7 +91,9 @@ export async function pushOps(user: SessionUser, body: PushBody): Promise<PushRe
 			 ON DUPLICATE KEY UPDATE user_id = VALUES(user_id), last_push_at = VALUES(last_push_at)`,
 			{ replacements: [body.deviceId, user.workshopId, user.id], type: QueryTypes.INSERT, transaction: t }
 		);
-		const seen = await findSeen(body.ops, t);
+		// The first append-only create is probed in its table: stored means a batch sent again.
+		const probe = body.ops.find((o) => isAppendOnly(o.entity) && o.kind === 'create');
+		const { seen, probeStored } = await findSeen([...new Set(body.ops.map((o) => o.opId))], t, probe);
 		const results: PushResult[] = [];
 		const toRemember: { op: Op; result: PushResult }[] = [];
 		const actorFor = (op: Op) => ({
@@ -59,7 +107,7 @@ export async function pushOps(user: SessionUser, body: PushBody): Promise<PushRe
 		for (let i = 0; i < ops.length; ) {
 			const first = seen.get(ops[i].opId);
 			if (first) {
-				results.push({ ...first, status: 'duplicate', firstStatus: first.status as never });
+				results.push(duplicateOf(first));
 				i++;
 				continue;
 			}
@@ -71,10 +119,15 @@ export async function pushOps(user: SessionUser, body: PushBody): Promise<PushRe
 					inRun.add(ops[j].opId);
 					run.push(ops[j++]);
 				}
-				const out = await applyRun(actorFor(ops[i]), run, t);
+				const out = await applyRun(actorFor(ops[i]), run, t, probeStored);
 				run.forEach((op, k) => {
+					if (out[k].status === 'duplicate') {
+						const { firstStatus, ...first } = out[k];
+						seen.set(op.opId, { ...first, status: firstStatus! });
+						return;
+					}
 					seen.set(op.opId, out[k]);
-					if (out[k].status === 'rejected') toRemember.push({ op, result: out[k] });
+					if (out[k].status === 'rejected' || withoutRow.has(out[k])) toRemember.push({ op, result: out[k] });
 				});
 				results.push(...out);
 				i = j;
