@@ -3,7 +3,8 @@
  *
  *  1. MariaDB up (the private server of this checkout; reused when it already runs), a fresh
  *     database `fieldbench_bench`, migrations, a build when the sources changed, the app
- *     served on a free port with ADDRESS_HEADER=x-forwarded-for.
+ *     served as `npm start` serves it (scripts/serve.js: WEB_CONCURRENCY processes, one per
+ *     core by default) on a free port with ADDRESS_HEADER=x-forwarded-for.
  *  2. Through the services (the one write path): per round an invented workshop, a lead, one
  *     technician per simulated device, a job per technician, a component with an approved
  *     two-check sheet, and four tests per job.
@@ -17,8 +18,9 @@
  *     table (`CREATE TABLE readings_raw LIKE readings`), the same batches, one transaction per
  *     batch: a multi-row INSERT per batch on one connection; `conn.batch()` on one
  *     connection; multi-row INSERTs on one connection per device at once.
- *  6. Rounds (3 by default) repeat 2–5 with fresh readings; the medians are printed: rows/s,
- *     p50/p95 per batch and the CPU seconds of the app, MariaDB and this process, for the
+ *  6. Rounds (5 by default) repeat 2–5 with fresh readings; the medians are printed: rows/s,
+ *     p50/p95 per batch and the CPU seconds of the app (all its processes), MariaDB and this
+ *     process, for the
  *     push, the replay and each raw path; then the endpoint's rate over the fastest
  *     one-connection raw path (goal: at least 0.5) and over the parallel raw path.
  *  7. Counts are checked every round (10,000 applied and stored, the feed moved by 10,000,
@@ -27,13 +29,15 @@
  *     when this run started it.
  *
  * Knobs (environment): BENCH_READINGS (10000), BENCH_DEVICES (4), BENCH_BATCH (250 ops per
- * push), BENCH_ROUNDS (3), BENCH_APPS (1 app server; more spreads the devices over several),
- * BENCH_WARMUP (1: push and insert a little into a separate workshop first; 0: no warm-up),
+ * push), BENCH_ROUNDS (5), WEB_CONCURRENCY (app processes, as for `npm start`),
+ * BENCH_WARMUP (readings per device pushed, replayed and inserted raw into a separate workshop
+ * first, 1,000 by default, so that the app's processes run compiled code as a server that has
+ * been up a while does; 0: no warm-up),
  * BENCH_SERVER_NODE_OPTIONS (NODE_OPTIONS for the app only, e.g. `--import ./profiler.mjs`;
  * node refuses `--cpu-prof` there). All data is invented.
  */
 import type { ChildProcess } from 'node:child_process';
-import { existsSync, readFileSync } from 'node:fs';
+import { existsSync, readdirSync, readFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import mariadb from 'mariadb';
@@ -60,10 +64,8 @@ const DB_NAME = 'fieldbench_bench';
 const READINGS = Number(process.env.BENCH_READINGS ?? 10_000);
 const DEVICES = Number(process.env.BENCH_DEVICES ?? 4);
 const BATCH = Number(process.env.BENCH_BATCH ?? 250);
-const WARMUP = (process.env.BENCH_WARMUP ?? '1') !== '0';
-const ROUNDS = Math.max(1, Number(process.env.BENCH_ROUNDS ?? 3));
-/** App servers (stateless, one database); the devices are spread over them. */
-const APPS = Math.max(1, Number(process.env.BENCH_APPS ?? 1));
+const WARMUP = Math.max(0, Number(process.env.BENCH_WARMUP ?? 1000));
+const ROUNDS = Math.max(1, Number(process.env.BENCH_ROUNDS ?? 5));
 const PASSWORD = 'bench-password-2026';
 const GOAL = 0.5;
 
@@ -186,7 +188,25 @@ const mariadbPid = () => {
 	return existsSync(file) ? Number(readFileSync(file, 'utf8').trim()) : undefined;
 };
 
-type Pids = { app: (number | undefined)[]; db?: number };
+/** A process and all its descendants (the app's cluster), from /proc. */
+function processTree(root: number | undefined): number[] {
+	if (root === undefined) return [];
+	const parent = new Map<number, number>();
+	for (const d of readdirSync('/proc')) {
+		if (!/^\d+$/.test(d)) continue;
+		try {
+			const stat = readFileSync(`/proc/${d}/stat`, 'utf8');
+			parent.set(Number(d), Number(stat.slice(stat.lastIndexOf(')') + 2).split(' ')[1]));
+		} catch {
+			/* gone */
+		}
+	}
+	const tree = [root];
+	for (let i = 0; i < tree.length; i++) for (const [pid, ppid] of parent) if (ppid === tree[i]) tree.push(pid);
+	return tree;
+}
+
+type Pids = { app: number | undefined; db?: number };
 /** CPU seconds of the app server, MariaDB and this process (the clients, or the raw inserts). */
 type Cpu = { app: number; db: number; bench: number };
 const ownCpu = () => {
@@ -194,7 +214,7 @@ const ownCpu = () => {
 	return (u.user + u.system) / 1e6;
 };
 const cpuOf = (p: Pids): Cpu => ({
-	app: p.app.reduce((n: number, pid) => n + cpuSeconds(pid), 0),
+	app: processTree(p.app).reduce((n: number, pid) => n + cpuSeconds(pid), 0),
 	db: cpuSeconds(p.db),
 	bench: ownCpu()
 });
@@ -274,23 +294,20 @@ async function main() {
 		Object.assign(process.env, env);
 		await migrate();
 		buildIfNeeded();
-		const urls: string[] = [];
-		for (let i = 0; i < APPS; i++) {
-			const served = await serve(
-				await freePort(4600 + i),
-				{
-					...env,
-					ADDRESS_HEADER: 'x-forwarded-for',
-					...(process.env.BENCH_SERVER_NODE_OPTIONS
-						? { NODE_OPTIONS: process.env.BENCH_SERVER_NODE_OPTIONS }
-						: {})
-				},
-				'inherit'
-			);
-			apps.push(served.child);
-			urls.push(served.url);
-		}
-		const pids: Pids = { app: apps.map((a) => a.pid), db: mariadbPid() };
+		const served = await serve(
+			await freePort(4600),
+			{
+				...env,
+				ADDRESS_HEADER: 'x-forwarded-for',
+				...(process.env.BENCH_SERVER_NODE_OPTIONS
+					? { NODE_OPTIONS: process.env.BENCH_SERVER_NODE_OPTIONS }
+					: {})
+			},
+			'inherit'
+		);
+		apps.push(served.child);
+		const pids: Pids = { app: served.child.pid, db: mariadbPid() };
+		const workers = Math.max(1, processTree(served.child.pid).length - 1);
 
 		// Data through the services (the one write path), as the integration tests do.
 		const dbMod = await import('../src/lib/server/db');
@@ -374,7 +391,7 @@ async function main() {
 				}
 				// Each device signs in from its own address (the sign-in throttle counts per address).
 				const c = new Client(
-					urls[d % APPS],
+					served.url,
 					`10.88.${Math.floor(++address / 250)}.${address % 250}`
 				);
 				const r = await c.signIn(email, PASSWORD);
@@ -487,7 +504,8 @@ async function main() {
 		};
 
 		if (WARMUP) {
-			const warm = await workshop('Warm-up', BATCH * 2);
+			const warm = await workshop('Warm-up', WARMUP);
+			await pushAll(warm.clients, warm.batches, pids);
 			await pushAll(warm.clients, warm.batches, pids);
 			const rows = await storedBatches(warm.workshopId, warm.batches);
 			for (const path of Object.keys(RAW_LABELS) as RawPath[]) await rawRun(path, rows);
@@ -579,7 +597,7 @@ async function main() {
 		console.log(
 			`\nMedians of ${ROUNDS} round(s) (${new Date().toISOString().slice(0, 10)}, ${os.cpus().length} cores, ` +
 				`${fmt(total)} readings per round, ${DEVICES} devices, batches of ${BATCH}, ` +
-				(APPS > 1 ? `${APPS} app servers, ` : '') +
+				`${workers} app process${workers > 1 ? 'es' : ''}, ` +
 				`${fmt(median(rounds.map((r) => r.mismatches)))} mismatches):`
 		);
 		line('endpoint push (HTTP, every check)', push);

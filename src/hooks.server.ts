@@ -1,9 +1,13 @@
 import type { Handle } from '@sveltejs/kit';
 import { readSession } from '$lib/server/auth/session';
-import { db } from '$lib/server/db';
+import { closeDb, db } from '$lib/server/db';
 import { errorBody } from '$lib/server/errors';
 
 db(); // registers the models once per server process
+
+// adapter-node stops taking requests on SIGTERM/SIGINT and then emits this: close the
+// database pool so the process ends (its idle connections would keep it alive).
+process.once('sveltekit:shutdown' as 'exit', () => void closeDb());
 
 export const handle: Handle = async ({ event, resolve }) => {
 	const { user, sessionId } = await readSession(event.cookies, event.url);

@@ -48,14 +48,17 @@ export function buildIfNeeded(force = false): boolean {
 	return true;
 }
 
-/** Start `node build` in its own process group; resolves once it answers /api/health. */
+/**
+ * Start the built app (`scripts/serve.js`: WEB_CONCURRENCY processes on one port, one per
+ * core by default) in its own process group; resolves once it answers /api/health.
+ */
 export async function serve(
 	port: number,
 	env: Record<string, string>,
 	stdio: 'inherit' | 'ignore' = 'inherit'
 ): Promise<{ child: ChildProcess; url: string }> {
 	const url = `http://localhost:${port}`;
-	const child = spawn(process.execPath, ['build'], {
+	const child = spawn(process.execPath, [path.join('scripts', 'serve.js')], {
 		cwd: ROOT,
 		detached: true,
 		stdio,

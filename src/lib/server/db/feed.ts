@@ -66,14 +66,6 @@ export const rawQuery = <T = unknown>(t: Transaction, sql: string, values?: unkn
 export const rawBatch = <T = unknown>(t: Transaction, sql: string, rows: unknown[][]) =>
 	onDriver<T>(t, (conn) => conn.batch(sql, rows));
 
-/**
- * `WITH ids AS (…)`: a list of ids passed as one JSON array parameter and joined as the
- * derived table `ids(v)` — one short parameter for several tables instead of an IN list per
- * table, and each join still goes through the table's unique index.
- */
-export const WITH_IDS =
-	"WITH ids AS (SELECT v FROM JSON_TABLE(?, '$[*]' COLUMNS (v CHAR(36) PATH '$')) AS j) ";
-
 /** A Date as MariaDB's DATETIME(3) text in UTC (the connection's time zone is UTC). */
 export const sqlDateTime = (d: Date) => d.toISOString().slice(0, 23).replace('T', ' ');
 

@@ -175,10 +175,11 @@ const toJson = (v: unknown) => (hasInfinity(v) ? stringifyNumbers(v) : JSON.stri
 
 /**
  * The bulk INSERT of one table's prepared rows (the driver's batch: one statement, all rows),
- * built before the seqs are known. Each row comes with its place among the applied ops;
+ * built before the seqs are known. The statement text is the same for every push, so each
+ * pooled connection prepares it once. Each row comes with its place among the applied ops;
  * `run(first)` gives it seq `first + place` and sends the rows.
  */
-function insertRows(table: AppendTable, rows: { place: number; row: unknown[] }[], t: Transaction) {
+function insertRows(table: AppendTable, rows: { place: number; row: unknown[] }[], { t }: Ctx) {
 	const cols = ['seq', ...COLUMNS[table]];
 	const sql = `INSERT INTO ${table} (${cols.join(', ')}, created_at) VALUES (${cols.map(() => '?').join(', ')}, UTC_TIMESTAMP(3))`;
 	const values = rows.map((r) => [0, ...r.row]);
@@ -262,7 +263,7 @@ export async function applyAppendOps(
 			if (list) list.push({ place, row: p.row });
 			else byTable.set(p.table, [{ place, row: p.row }]);
 		});
-		const inserts = [...byTable].map(([table, rows]) => insertRows(table, rows, t));
+		const inserts = [...byTable].map(([table, rows]) => insertRows(table, rows, ctx));
 		const mism = ok.filter((p) => p.mismatch);
 		// The counter row stays locked from here to the commit: only the INSERTs remain.
 		const first = await nextSeq(t, actor.workshopId, ok.length);

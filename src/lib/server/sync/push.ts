@@ -11,7 +11,8 @@
  *  3. an op that throws is rolled back alone and answered `rejected: server_error`;
  *  4. the first answers go into the ledger in the same transaction as their effects.
  */
-import { QueryTypes, type Transaction } from 'sequelize';
+import type { Transaction } from 'sequelize';
+import { rawQuery } from '../db/feed';
 import type { SessionUser } from '../auth/types';
 import { db } from '../db';
 import { isAppendOnly, type Op, type PushBody, type PushResult } from '../../sync/protocol';
@@ -86,10 +87,11 @@ const duplicateOf = (first: PushResult): PushResult => ({
 
 export async function pushOps(user: SessionUser, body: PushBody): Promise<PushResult[]> {
 	return db().transaction(async (t) => {
-		await db().query(
+		await rawQuery(
+			t,
 			`INSERT INTO sync_devices (device_id, workshop_id, user_id, last_push_at) VALUES (?, ?, ?, UTC_TIMESTAMP(3))
 			 ON DUPLICATE KEY UPDATE user_id = VALUES(user_id), last_push_at = VALUES(last_push_at)`,
-			{ replacements: [body.deviceId, user.workshopId, user.id], type: QueryTypes.INSERT, transaction: t }
+			[body.deviceId, user.workshopId, user.id]
 		);
 		// The first append-only create is probed in its table: stored means a batch sent again.
 		const probe = body.ops.find((o) => isAppendOnly(o.entity) && o.kind === 'create');
