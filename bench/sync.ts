@@ -28,8 +28,8 @@
  *     The timing goal is reported, never enforced. Stops the app servers, and MariaDB only
  *     when this run started it.
  *
- * Knobs (environment): BENCH_READINGS (10000), BENCH_DEVICES (4), BENCH_BATCH (250 ops per
- * push), BENCH_ROUNDS (5), WEB_CONCURRENCY (app processes, as for `npm start`),
+ * Knobs (environment): BENCH_READINGS (10000), BENCH_DEVICES (4), BENCH_BATCH (ops per push:
+ * the phone's PUSH_BATCH, 500), BENCH_ROUNDS (5), WEB_CONCURRENCY (app processes, as for `npm start`),
  * BENCH_WARMUP (readings per device pushed, replayed and inserted raw into a separate workshop
  * first, 1,000 by default, so that the app's processes run compiled code as a server that has
  * been up a while does; 0: no warm-up),
@@ -53,6 +53,7 @@ import {
 	stopServer
 } from '../scripts/lib/mariadb';
 import { Client } from '../tests/helpers/http';
+import { PUSH_BATCH } from '../src/lib/sync/protocol';
 import {
 	evaluateReading,
 	meterFor,
@@ -63,7 +64,7 @@ import {
 const DB_NAME = 'fieldbench_bench';
 const READINGS = Number(process.env.BENCH_READINGS ?? 10_000);
 const DEVICES = Number(process.env.BENCH_DEVICES ?? 4);
-const BATCH = Number(process.env.BENCH_BATCH ?? 250);
+const BATCH = Number(process.env.BENCH_BATCH ?? PUSH_BATCH);
 const WARMUP = Math.max(0, Number(process.env.BENCH_WARMUP ?? 1000));
 const ROUNDS = Math.max(1, Number(process.env.BENCH_ROUNDS ?? 5));
 const PASSWORD = 'bench-password-2026';

@@ -62,6 +62,7 @@ export function parseDecimal(text: string): number | null {
  * @returns the normalized symbol, or `null` when the unit is not one of {@link Unit}.
  */
 export function normalizeUnit(unit: string): Unit | null {
+	if (Object.hasOwn(UNIT_FACTORS, unit)) return unit as Unit; // already a symbol: unchanged below
 	const symbol = unit
 		.trim()
 		.replace('\u2126', 'Ω')

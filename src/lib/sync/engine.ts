@@ -14,20 +14,19 @@
  */
 import { getMeta, setMeta, type LocalDb, type LocalRecord } from './local-db';
 import { countOutbox, peekOutbox } from './outbox';
-import type { Change, Op, PushResult } from './protocol';
+import { PUSH_BATCH, type Change, type Op, type PushResult } from './protocol';
 
 export type SyncState = 'idle' | 'syncing' | 'offline' | 'signed_out' | 'error';
 export type SyncReport = { state: SyncState; pushed: number; pulled: number; waiting: number; issues: number; error?: string };
 type Fetch = (input: string, init?: RequestInit) => Promise<Response>;
 
 const CURSOR = 'cursor';
-const DEFAULT_BATCH = 200;
 
 class Transient extends Error {}
 class SignedOut extends Error {}
 
 export class SyncEngine {
-	batch = DEFAULT_BATCH;
+	batch = PUSH_BATCH;
 	constructor(
 		private db: LocalDb,
 		private deviceId: string,

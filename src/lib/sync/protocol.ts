@@ -34,6 +34,12 @@ export function isAppendOnly(entity: Entity): entity is AppendOnlyEntity {
 export const MAX_OPS = 1000;
 /** At most this many bytes in one push body, 1 MiB (more is a 413, checked before parsing). */
 export const MAX_BODY_BYTES = 1024 * 1024;
+/**
+ * Ops a device sends per push (it halves the batch after a 413). Each push costs the server
+ * a session check, a transaction and a few lookups whatever its size, so a phone back on the
+ * workshop's network sends its readings in a few large pushes, not many small ones.
+ */
+export const PUSH_BATCH = 500;
 /** Pull page size when the query gives none. */
 export const DEFAULT_PULL_LIMIT = 500;
 /** The largest pull page a query may ask for. */

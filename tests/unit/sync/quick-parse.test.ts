@@ -152,13 +152,18 @@ const mutated = <T>(valid: fc.Arbitrary<T>) =>
 		})
 	);
 
+/**
+ * Zod's answer on one copy, the quick parser's on another (it may change its input in place:
+ * ids lower-cased, an empty position made null). Copies by structuredClone are plain objects,
+ * as JSON.parse makes them.
+ */
 function agrees(
 	quick: (x: never) => unknown,
 	schema: { safeParse: (x: unknown) => { success: boolean; data?: unknown } },
 	input: unknown
 ) {
-	const q = quick(input as never);
-	const z = schema.safeParse(input);
+	const z = schema.safeParse(structuredClone(input));
+	const q = quick(structuredClone(input) as never);
 	if (q !== null) {
 		expect(z.success).toBe(true);
 		expect(q).toStrictEqual(z.data);
@@ -227,6 +232,37 @@ describe('quickReadingCreate', () => {
 			}),
 			{ numRuns: 3000 }
 		);
+	});
+
+	const plain = () => ({
+		testId: uuidv7(),
+		checkKey: 'primary',
+		position: '1',
+		rangeLabel: '200 Ω',
+		samples: [{ value: 0.5, unit: 'Ω' }],
+		deviceResult: { value: 0.4, verdict: 'within' }
+	});
+	const x = (n: number) => 'x'.repeat(n);
+	it.each([
+		['checkKey', (f: Record<string, unknown>, n: number) => (f.checkKey = 'k'.repeat(n)), 40],
+		['position', (f: Record<string, unknown>, n: number) => (f.position = x(n)), 20],
+		['rangeLabel', (f: Record<string, unknown>, n: number) => (f.rangeLabel = x(n)), 30],
+		['unit', (f: Record<string, unknown>, n: number) => (f.samples = [{ value: 1, unit: x(n) }]), 4],
+		['verdict', (f: Record<string, unknown>, n: number) => (f.deviceResult = { value: 1, verdict: x(n) }), 20],
+		['samples', (f: Record<string, unknown>, n: number) => (f.samples = Array(n).fill({ value: 1, unit: 'Ω' })), 20]
+	] as const)('takes %s at its limit and leaves one past it to zod', (_, set, limit) => {
+		const at = plain();
+		set(at, limit);
+		expect(agrees(quickReadingCreate, readingCreate, at)).not.toBeNull();
+		const past = plain();
+		set(past, limit + 1);
+		expect(agrees(quickReadingCreate, readingCreate, past)).toBeNull();
+		expect(readingCreate.safeParse(past).success).toBe(false);
+	});
+
+	it('keeps other keys of the device result, as passthrough does', () => {
+		const f = { ...plain(), deviceResult: { value: 1, verdict: 'within', u: 0.02 } };
+		expect(agrees(quickReadingCreate, readingCreate, f)).toMatchObject({ deviceResult: { u: 0.02 } });
 	});
 
 	it('turns an empty position into null, as optionalText does', () => {

@@ -39,8 +39,8 @@ const meterOf = (test: TestInfo, rangeLabel: string | null) => {
 	return m;
 };
 /**
- * An op ready to insert: its row in the order of `COLUMNS[table]` (the seq and creation time
- * are added when the rows are sent). `same` is what makes a repeated create of a reading the
+ * An op ready to insert: its row, a slot for the seq (filled when the rows are sent) then the
+ * values of `COLUMNS[table]` in that order (the creation time is the server's). `same` is what makes a repeated create of a reading the
  * same record (its check and samples).
  */
 type Prepared = { op: Op; table: AppendTable; row: unknown[]; same: string; mismatch?: { device: string; server: string } };
@@ -101,6 +101,21 @@ async function loadJobs(ids: string[], { actor, t }: Ctx) {
 	return new Map(rows.map((r) => [r.id, r.assignee_id]));
 }
 
+/**
+ * `items.map(fn)` in slices, letting the event loop run between them. A push prepares
+ * hundreds of readings; done in one go it would hold back every other request of this
+ * process — among them another push's commit, whose transaction holds the workshop's feed
+ * counter until then, so every pusher of the workshop would wait too.
+ */
+async function mapInSlices<T, U>(items: T[], fn: (item: T) => U, size = 64): Promise<U[]> {
+	const out = new Array<U>(items.length);
+	for (let i = 0; i < items.length; i++) {
+		if (i > 0 && i % size === 0) await new Promise((resolve) => setImmediate(resolve));
+		out[i] = fn(items[i]);
+	}
+	return out;
+}
+
 /** Validate and prepare each op; returns a result for refused ops and a row for the rest. */
 async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> {
 	const parsed = ops.map((op) => {
@@ -114,11 +129,11 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 	const tests = await loadTests(ids('testId'), ctx);
 	const jobs = await loadJobs(ids('jobId'), ctx);
 	const mine = (assigneeId: string | null) => mayOpenJob(ctx.actor, { assigneeId });
-	return parsed.map((p): Prepared | PushResult => {
+	return mapInSlices(parsed, (p): Prepared | PushResult => {
 		if (!('f' in p) || !p.f) return reject(p.op, 'invalid', (p as { error: string }).error);
 		const { op, f } = p;
-		/** The `BASE` columns, then the table's own. */
-		const row = (jobId: unknown, testId: unknown, ...rest: unknown[]) => [ctx.actor.workshopId, op.entityId, op.opId, ctx.actor.userId, ctx.actor.deviceId, deviceDateTime(op.deviceTime), jobId, testId, ...rest];
+		/** The seq (set when the rows are sent), the `BASE` columns, then the table's own. */
+		const row = (jobId: unknown, testId: unknown, ...rest: unknown[]) => [0, ctx.actor.workshopId, op.entityId, op.opId, ctx.actor.userId, ctx.actor.deviceId, deviceDateTime(op.deviceTime), jobId, testId, ...rest];
 		if (op.entity === 'reading' || op.entity === 'signoff') {
 			const test = tests.get(f.testId as string);
 			if (!test || Number(test.deleted) || !mine(test.assignee_id)) return reject(op, 'not_found');
@@ -182,10 +197,13 @@ const toJson = (v: unknown) => (hasInfinity(v) ? stringifyNumbers(v) : JSON.stri
 function insertRows(table: AppendTable, rows: { place: number; row: unknown[] }[], { t }: Ctx) {
 	const cols = ['seq', ...COLUMNS[table]];
 	const sql = `INSERT INTO ${table} (${cols.join(', ')}, created_at) VALUES (${cols.map(() => '?').join(', ')}, UTC_TIMESTAMP(3))`;
-	const values = rows.map((r) => [0, ...r.row]);
 	return (first: number) => {
-		rows.forEach((r, k) => (values[k][0] = first + r.place));
-		return rawBatch(t, sql, values);
+		for (const r of rows) r.row[0] = first + r.place;
+		return rawBatch(
+			t,
+			sql,
+			rows.map((r) => r.row)
+		);
 	};
 }
 

@@ -87,15 +87,18 @@ const duplicateOf = (first: PushResult): PushResult => ({
 
 export async function pushOps(user: SessionUser, body: PushBody): Promise<PushResult[]> {
 	return db().transaction(async (t) => {
-		await rawQuery(
-			t,
-			`INSERT INTO sync_devices (device_id, workshop_id, user_id, last_push_at) VALUES (?, ?, ?, UTC_TIMESTAMP(3))
-			 ON DUPLICATE KEY UPDATE user_id = VALUES(user_id), last_push_at = VALUES(last_push_at)`,
-			[body.deviceId, user.workshopId, user.id]
-		);
-		// The first append-only create is probed in its table: stored means a batch sent again.
+		// The device's row first (the lock), then the ledger: sent together, run in this order.
 		const probe = body.ops.find((o) => isAppendOnly(o.entity) && o.kind === 'create');
-		const { seen, probeStored } = await findSeen([...new Set(body.ops.map((o) => o.opId))], t, probe);
+		const [, { seen, probeStored }] = await Promise.all([
+			rawQuery(
+				t,
+				`INSERT INTO sync_devices (device_id, workshop_id, user_id, last_push_at) VALUES (?, ?, ?, UTC_TIMESTAMP(3))
+				 ON DUPLICATE KEY UPDATE user_id = VALUES(user_id), last_push_at = VALUES(last_push_at)`,
+				[body.deviceId, user.workshopId, user.id]
+			),
+			// The first append-only create is probed in its table: stored means a batch sent again.
+			findSeen([...new Set(body.ops.map((o) => o.opId))], t, probe)
+		]);
 		const results: PushResult[] = [];
 		const toRemember: { op: Op; result: PushResult }[] = [];
 		const actorFor = (op: Op) => ({
