@@ -37,6 +37,7 @@
  * node refuses `--cpu-prof` there). All data is invented.
  */
 import type { ChildProcess } from 'node:child_process';
+import http from 'node:http';
 import { existsSync, readdirSync, readFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -224,6 +225,39 @@ const cpuSince = (p: Pids, from: Cpu): Cpu => {
 	return { app: now.app - from.app, db: now.db - from.db, bench: now.bench - from.bench };
 };
 
+/**
+ * POST a JSON body with the client's session cookie over node:http, one kept-alive socket per
+ * device: a phone's connection, and less of the shared CPU spent in the benchmark's own
+ * client than with fetch.
+ */
+const agents = new Map<Client, http.Agent>();
+function post(c: Client, path: string, body: string): Promise<{ status: number; text: string }> {
+	let agent = agents.get(c);
+	if (!agent) agents.set(c, (agent = new http.Agent({ keepAlive: true, maxSockets: 1 })));
+	const url = new URL(path, c.base);
+	return new Promise((resolve, reject) => {
+		const req = http.request(
+			url,
+			{
+				method: 'POST',
+				agent,
+				headers: {
+					...c.headers({ 'content-type': 'application/json', accept: 'application/json' }),
+					'content-length': Buffer.byteLength(body)
+				}
+			},
+			(res) => {
+				const chunks: Buffer[] = [];
+				res.on('data', (d: Buffer) => chunks.push(d));
+				res.on('end', () => resolve({ status: res.statusCode ?? 0, text: Buffer.concat(chunks).toString('utf8') }));
+				res.on('error', reject);
+			}
+		);
+		req.on('error', reject);
+		req.end(body);
+	});
+}
+
 /** Push every device's batches, the devices at the same time, each in order. */
 async function pushAll(clients: Client[], batches: Batch[], pids: Pids) {
 	const cpu0 = cpuOf(pids);
@@ -235,11 +269,11 @@ async function pushAll(clients: Client[], batches: Batch[], pids: Pids) {
 		byDevice.map(async (list, d) => {
 			for (const b of list) {
 				const s = performance.now();
-				const r = await clients[d].json('POST', '/api/sync/push', b.body);
-				const body = (await r.json()) as { results?: Result[] };
+				const r = await post(clients[d], '/api/sync/push', b.body);
+				const body = JSON.parse(r.text) as { results?: Result[] };
 				latencies.push(performance.now() - s);
 				if (r.status !== 200 || !body.results)
-					throw new Error(`push ${r.status}: ${JSON.stringify(body).slice(0, 500)}`);
+					throw new Error(`push ${r.status}: ${r.text.slice(0, 500)}`);
 				for (const x of body.results) results.set(x.opId, x);
 			}
 		})
@@ -609,10 +643,20 @@ async function main() {
 				`(goal ≥ ${GOAL}: ${ratio >= GOAL ? 'met' : 'NOT met'}); ` +
 				`endpoint / raw on ${DEVICES} connections = ${fmt(push.rate / raw.multiParallel.rate, 2)}`
 		);
+		// Paired per round (push and raw ran minutes apart at most, on the same machine state).
+		const perRound = rounds
+			.map((r) => r.push.seconds ** -1 / Math.max(r.raw.multi.seconds ** -1, r.raw.batch.seconds ** -1))
+			.sort((a, b) => a - b);
+		console.log(
+			`  per round, endpoint / fastest one-connection raw path: median ${fmt(median(perRound), 2)}, ` +
+				`from ${fmt(perRound[0], 2)} to ${fmt(perRound[perRound.length - 1], 2)} ` +
+				`(${perRound.map((x) => fmt(x, 2)).join(', ')})`
+		);
 		console.log(
 			failures.length ? `\n${failures.length} check(s) failed.` : '\nAll counts checked.'
 		);
 	} finally {
+		for (const a of agents.values()) a.destroy();
 		if (pool) await pool.end();
 		if (closeDb) await closeDb();
 		for (const a of apps) stopServe(a);
