@@ -5,9 +5,10 @@
  * per-device sync lock live in MariaDB — so any process may answer any request.
  *
  * The app processes get APP_NODE_FLAGS (default `DEFAULT_FLAGS` below). A process that ends
- * unexpectedly is replaced, unless they keep ending within seconds of starting (a broken
- * build or an unreachable database): then the server stops with an error. SIGINT/SIGTERM stop
- * every process (adapter-node lets each finish its open requests).
+ * unexpectedly is replaced, a little later each time it happens again within a minute, and
+ * the server stops with an error when they keep ending within seconds of starting (a broken
+ * build). SIGINT/SIGTERM stop every process: adapter-node lets each finish its open requests,
+ * and one still running after SHUTDOWN_TIMEOUT (adapter-node's, 30 s) plus 5 s is killed.
  */
 import cluster from 'node:cluster';
 import os from 'node:os';
@@ -44,26 +45,38 @@ if (cluster.isWorker) {
 	const started = new Map();
 	const fork = () => started.set(cluster.fork().id, Date.now());
 	for (let i = 0; i < count; i++) fork();
+	let lastExit = 0;
+	let delay = 0;
 	cluster.on('exit', (worker, code, signal) => {
 		if (stopping) {
 			if (!Object.keys(cluster.workers ?? {}).length) process.exit(0);
 			return;
 		}
-		const quick = Date.now() - (started.get(worker.id) ?? 0) < 5000;
+		const now = Date.now();
+		const quick = now - (started.get(worker.id) ?? 0) < 5000;
 		quickExits = quick ? quickExits + 1 : 0;
 		if (quickExits >= count * 2) {
 			console.error('The app processes keep ending right after they start; stopping.');
 			process.exit(1);
 		}
-		console.error(`App process ${worker.process.pid} ended (${signal ?? code}); starting another.`);
-		fork();
+		// Back off while they keep ending: 0.5 s, 1 s, 2 s … up to 30 s; reset after a calm minute.
+		delay = now - lastExit > 60_000 ? 0 : Math.min(Math.max(delay * 2, 500), 30_000);
+		lastExit = now;
+		console.error(`App process ${worker.process.pid} ended (${signal ?? code}); starting another${delay ? ` in ${delay / 1000} s` : ''}.`);
+		setTimeout(fork, delay);
 	});
 	for (const sig of ['SIGINT', 'SIGTERM']) {
 		process.on(sig, () => {
+			if (stopping) return;
 			stopping = true;
 			const workers = Object.values(cluster.workers ?? {});
 			if (!workers.length) process.exit(0);
 			for (const w of workers) w?.process.kill(sig);
+			const grace = (Number(process.env.SHUTDOWN_TIMEOUT) || 30) * 1000 + 5000;
+			setTimeout(() => {
+				for (const w of Object.values(cluster.workers ?? {})) w?.process.kill('SIGKILL');
+				process.exit(0);
+			}, grace).unref();
 		});
 	}
 }

@@ -191,3 +191,35 @@ describe('guards', () => {
 		expect(all.sort()).toEqual([jobB, other.id].sort());
 	});
 });
+
+describe('session lifetime', () => {
+	const sessionOf = (c: Client) => Session.findByPk(c.cookies.get('fb_session')!);
+
+	it('refuses an expired session and a deactivated user', async () => {
+		const w = await makeWorkshop('Lifetime');
+		const c = client();
+		expect((await c.signIn(w.users.technician.email, TEST_PASSWORD)).status).toBe(303);
+		expect((await c.get('/api/me')).status).toBe(200);
+		await Session.update({ expiresAt: new Date(Date.now() - 60_000) }, { where: { id: c.cookies.get('fb_session')! } });
+		expect((await c.get('/api/me')).status).toBe(401);
+
+		const d = client();
+		expect((await d.signIn(w.users.apprentice.email, TEST_PASSWORD)).status).toBe(303);
+		await User.update({ active: false }, { where: { id: w.users.apprentice.id } });
+		expect((await d.get('/api/me')).status).toBe(401);
+	});
+
+	it('slides a session used in the second half of its 30 days to a new expiry, and keeps a young one', async () => {
+		const w = await makeWorkshop('Sliding');
+		const c = client();
+		expect((await c.signIn(w.users.technician.email, TEST_PASSWORD)).status).toBe(303);
+		const young = (await sessionOf(c))!.expiresAt.getTime();
+		expect((await c.get('/api/me')).status).toBe(200);
+		expect((await sessionOf(c))!.expiresAt.getTime()).toBe(young);
+		const tenDays = new Date(Date.now() + 10 * 86_400_000);
+		await Session.update({ expiresAt: tenDays }, { where: { id: c.cookies.get('fb_session')! } });
+		expect((await c.get('/api/me')).status).toBe(200);
+		const slid = (await sessionOf(c))!.expiresAt.getTime();
+		expect(slid).toBeGreaterThan(Date.now() + 29 * 86_400_000);
+	});
+});

@@ -318,6 +318,27 @@ describe('pull', () => {
 		expect(all).toEqual(expect.arrayContaining([mineJob, theirJob, comp, draft.id]));
 	});
 
+	it('answers duplicate for a stored reading sent again after its job went to someone else', async () => {
+		// The phone retries a batch whose first op is new: the bulk insert goes first, and the
+		// stored reading is refused before any insert (the job is no longer this technician's).
+		const w = await makeWorkshop('Retry after reassign');
+		const l = w.users.lead.actor;
+		const j = await jobs.create(l, { complaint: 'Retried', assigneeId: w.users.technician.id });
+		const techC = await signedIn(w.users.technician.email);
+		const t = create('test', { jobId: j.id });
+		const stored = create('reading', { testId: t.entityId, checkKey: 'primary', samples: [{ value: 0.5, unit: 'Ω' }] });
+		expect((await push(techC, 'phone-a', [t, stored])).map((r) => r.status)).toEqual(['applied', 'applied']);
+		await jobs.update(l, j.id as string, (await Job.findByPk(j.id as string))!.version, { assigneeId: w.users.apprentice.id });
+		const late = create('reading', { testId: t.entityId, checkKey: 'primary', samples: [{ value: 0.51, unit: 'Ω' }] });
+		const res = await push(techC, 'phone-a', [late, stored]);
+		expect(res.map((r) => r.status)).toEqual(['rejected', 'duplicate']);
+		expect(res[0].reason).toBe('not_found');
+		expect(res[1].firstStatus).toBe('applied');
+		// And the ledger keeps those answers: sent once more, both are duplicates of them.
+		const again = await push(techC, 'phone-a', [late, stored]);
+		expect(again.map((r) => `${r.status}:${r.firstStatus}`)).toEqual(['duplicate:rejected', 'duplicate:applied']);
+	});
+
 	it('evicts a reassigned job from the old assignee and sends it to the new one', async () => {
 		const w = await makeWorkshop('Evict');
 		const l = w.users.lead.actor;

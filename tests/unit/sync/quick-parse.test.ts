@@ -167,6 +167,12 @@ function agrees(
 	if (q !== null) {
 		expect(z.success).toBe(true);
 		expect(q).toStrictEqual(z.data);
+		// The parts stored as text must also come out with zod's key order.
+		const text = (o: unknown) => {
+			const r = o as { samples?: unknown; deviceResult?: unknown; ops?: { fields: unknown }[] };
+			return JSON.stringify([r.samples, r.deviceResult, r.ops?.map((x) => x.fields)]);
+		};
+		expect(text(q)).toBe(text(z.data));
 	}
 	return q;
 }
@@ -260,9 +266,19 @@ describe('quickReadingCreate', () => {
 		expect(readingCreate.safeParse(past).success).toBe(false);
 	});
 
-	it('keeps other keys of the device result, as passthrough does', () => {
+	it('leaves other keys of the device result to zod, which keeps them (passthrough) but drops __proto__', () => {
 		const f = { ...plain(), deviceResult: { value: 1, verdict: 'within', u: 0.02 } };
-		expect(agrees(quickReadingCreate, readingCreate, f)).toMatchObject({ deviceResult: { u: 0.02 } });
+		expect(agrees(quickReadingCreate, readingCreate, f)).toBeNull();
+		expect(readingCreate.parse(f).deviceResult).toMatchObject({ u: 0.02 });
+		const proto = JSON.parse('{"value":1,"verdict":"within","__proto__":{"x":1}}');
+		expect(quickReadingCreate({ ...plain(), deviceResult: proto })).toBeNull();
+	});
+
+	it('orders each sample as the schema does, whatever order the phone sent', () => {
+		const f = { ...plain(), samples: [{ unit: 'Ω', value: 0.5 }], deviceResult: { verdict: 'within', value: 0.4 } };
+		const q = agrees(quickReadingCreate, readingCreate, f) as { samples: unknown; deviceResult: unknown };
+		expect(JSON.stringify(q.samples)).toBe('[{"value":0.5,"unit":"Ω"}]');
+		expect(JSON.stringify(q.deviceResult)).toBe('{"value":0.4,"verdict":"within"}');
 	});
 
 	it('turns an empty position into null, as optionalText does', () => {

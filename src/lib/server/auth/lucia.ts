@@ -19,7 +19,7 @@ const toDbSession = (s: Session): DatabaseSession => ({
 type SessionRow = {
 	id: string;
 	user_id: string;
-	expires_ms: number | string;
+	expires_at: string;
 	uid: string | null;
 	active: number | boolean | null;
 	workshop_id: string | null;
@@ -33,7 +33,7 @@ export const sessionAdapter: Adapter = {
 	/** One query per request (every API call reads its session): session, user and workshop. */
 	async getSessionAndUser(sessionId) {
 		const [row] = await db().query<SessionRow>(
-			`SELECT s.id, s.user_id, UNIX_TIMESTAMP(s.expires_at) * 1000 AS expires_ms,
+			`SELECT s.id, s.user_id, DATE_FORMAT(s.expires_at, '%Y-%m-%dT%H:%i:%s.%fZ') AS expires_at,
 			        u.id AS uid, u.active, u.workshop_id, u.email, u.name, u.role, w.name AS workshop_name
 			 FROM sessions s LEFT JOIN users u ON u.id = s.user_id LEFT JOIN workshops w ON w.id = u.workshop_id
 			 WHERE s.id = ?`,
@@ -43,7 +43,7 @@ export const sessionAdapter: Adapter = {
 		const session: DatabaseSession = {
 			id: row.id,
 			userId: row.user_id,
-			expiresAt: new Date(Number(row.expires_ms)),
+			expiresAt: new Date(row.expires_at), // stored in UTC (the connections' time zone)
 			attributes: {}
 		};
 		if (!row.uid || !Number(row.active)) return [session, null];

@@ -258,20 +258,33 @@ export const withoutRow = new WeakSet<PushResult>();
 /** A MariaDB duplicate-key error (ER_DUP_ENTRY), as a taken id or op id raises it. */
 export const isDuplicateKey = (e: unknown) => (e as { errno?: number } | null)?.errno === 1062;
 
+/** A prepared op: its row, or the answer that refused it. */
+export type PreparedOp = Prepared | PushResult;
+/** Whether a prepared op has a row to insert (else it is its own refusal). */
+export const hasRow = (p: PreparedOp): p is Prepared => 'table' in p;
+
+/**
+ * Validate consecutive append-only ops and build their rows (reads only, no lock taken): one
+ * entry per op, in order — a row, or the answer that refuses the op.
+ */
+export const prepareAppendOps = (actor: Actor, ops: Op[], t: Transaction): Promise<PreparedOp[]> =>
+	prepare(ops, { actor, t });
+
 /**
  * Apply consecutive append-only ops; one result per op, in order. With `checkIds: false`
  * the ids are not looked up first: new ids are the rule, and a taken id or op id makes the
  * INSERT fail with a duplicate key (`isDuplicateKey`), after which the caller rolls back to
- * its savepoint and comes again with `checkIds: true`.
+ * its savepoint and comes again with `checkIds: true` (the rows can be inserted again).
  */
 export async function applyAppendOps(
 	actor: Actor,
-	ops: Op[],
+	ops: Op[] | PreparedOp[],
 	t: Transaction,
-	{ checkIds = true }: { checkIds?: boolean } = {}
+	{ checkIds = true, prepared: given = false }: { checkIds?: boolean; prepared?: boolean } = {}
 ): Promise<PushResult[]> {
 	const ctx = { actor, t };
-	const prepared = checkIds ? await refuseTakenIds(await prepare(ops, ctx), ctx) : await prepare(ops, ctx);
+	const built = given ? (ops as PreparedOp[]) : await prepare(ops as Op[], ctx);
+	const prepared = checkIds ? await refuseTakenIds(built, ctx) : built;
 	const ok = prepared.filter((p): p is Prepared => 'table' in p);
 	if (ok.length) {
 		// Seqs follow the order of the ops: the k-th applied op gets the block's first + k.

@@ -16,7 +16,7 @@ import { rawQuery } from '../db/feed';
 import type { SessionUser } from '../auth/types';
 import { db } from '../db';
 import { isAppendOnly, type Op, type PushBody, type PushResult } from '../../sync/protocol';
-import { applyAppendOps, isDuplicateKey, withoutRow } from './append';
+import { applyAppendOps, hasRow, isDuplicateKey, prepareAppendOps, withoutRow, type PreparedOp } from './append';
 import { findSeen, findStored, remember } from './ledger';
 import { applyMutableOp } from './mutable';
 
@@ -42,17 +42,32 @@ async function oneByOne(actor: AppendActor, run: Op[], t: Transaction) {
 }
 
 /**
- * A run of append-only creates (none of them in the ledger): first in bulk without looking
- * the ids up — new records are the rule, and the tables' unique keys refuse a taken id or
- * op id. On a duplicate key the savepoint is rolled back and the run comes again with the
- * lookups: ops whose record is stored answer `duplicate`, the rest go through the id checks.
- * When the batch looks sent again (`likelyStored`), the lookups come first. Any other
- * failure, or a second one: op by op.
+ * A run of append-only creates (none of them in the ledger). The rows are built first (no
+ * lock taken), then inserted in bulk without looking the ids up — new records are the rule,
+ * and the tables' unique keys refuse a taken id or op id. On a duplicate key the savepoint is
+ * rolled back and the same rows go again with the lookups: ops whose record is stored answer
+ * `duplicate`, the rest go through the id checks. An op refused while its row was built (its
+ * job reassigned since, say) is looked up too, so a stored record always answers
+ * `duplicate`. When the batch looks sent again (`likelyStored`), the lookups come first. Any
+ * other failure, or a second one: op by op.
  */
 async function applyRun(actor: AppendActor, run: Op[], t: Transaction, likelyStored: boolean): Promise<PushResult[]> {
+	let prepared: PreparedOp[];
+	try {
+		prepared = await prepareAppendOps(actor, run, t);
+	} catch (e) {
+		console.error('sync: append run failed', e);
+		return run.length === 1 ? [failed(run[0])] : oneByOne(actor, run, t);
+	}
 	if (!likelyStored) {
+		const refused = run.filter((_, i) => !hasRow(prepared[i]));
+		const stored = refused.length ? await findStored(refused, t) : new Map<string, PushResult>();
 		try {
-			return await savepoint(t, (sp) => applyAppendOps(actor, run, sp, { checkIds: false }));
+			const out = await savepoint(t, (sp) => applyAppendOps(actor, prepared, sp, { checkIds: false, prepared: true }));
+			return out.map((r, i) => {
+				const first = stored.get(run[i].opId);
+				return first ? duplicateOf(first) : r;
+			});
 		} catch (e) {
 			if (!isDuplicateKey(e)) {
 				console.error('sync: append run failed', e);
@@ -62,10 +77,11 @@ async function applyRun(actor: AppendActor, run: Op[], t: Transaction, likelySto
 	}
 	const stored = await findStored(run, t);
 	const fresh = run.filter((op) => !stored.has(op.opId));
+	const freshPrepared = prepared.filter((_, i) => !stored.has(run[i].opId));
 	let applied: PushResult[] = [];
 	if (fresh.length) {
 		try {
-			applied = await savepoint(t, (sp) => applyAppendOps(actor, fresh, sp));
+			applied = await savepoint(t, (sp) => applyAppendOps(actor, freshPrepared, sp, { prepared: true }));
 		} catch (e) {
 			console.error('sync: append run failed', e);
 			applied = await oneByOne(actor, fresh, t);

@@ -83,6 +83,7 @@ export function quickPushBody(body: unknown): PushBody | null {
 type ReadingFields = z.output<typeof readingCreate>;
 const READING_KEYS = new Set(['testId', 'checkKey', 'position', 'samples', 'rangeLabel', 'deviceResult']);
 const SAMPLE_KEYS = new Set(['value', 'unit']);
+const RESULT_KEYS = new Set(['value', 'verdict']);
 
 /** `readingCreate.parse(fields)` for plain fields; `null` means: ask zod. */
 export function quickReadingCreate(f: Record<string, unknown>): ReadingFields | null {
@@ -95,22 +96,28 @@ export function quickReadingCreate(f: Record<string, unknown>): ReadingFields | 
 		if (!isString(position) || position.length > 20 || position.trim() !== position) return null;
 	}
 	if (!Array.isArray(samples) || samples.length < 1 || samples.length > 20) return null;
+	// New sample objects, keys in the schema's order, as zod makes them (the stored text and
+	// the check for a repeated create depend on it).
+	const outSamples: ReadingFields['samples'] = new Array(samples.length);
 	for (let i = 0; i < samples.length; i++) {
 		const s = samples[i];
 		if (!isPlainObject(s) || !onlyKeys(s, SAMPLE_KEYS)) return null;
 		const { value, unit } = s;
 		if (!(value === 'OL' || (typeof value === 'number' && Number.isFinite(value)))) return null;
 		if (!isString(unit) || unit.length < 1 || unit.length > 4) return null;
+		outSamples[i] = { value, unit };
 	}
 	if (rangeLabel !== undefined && rangeLabel !== null && (!isString(rangeLabel) || rangeLabel.length > 30)) return null;
 	if (deviceResult !== undefined && deviceResult !== null) {
-		// `.passthrough()`: other keys stay, unchecked, as zod keeps them.
-		if (!isPlainObject(deviceResult)) return null;
+		// Other keys (kept by `.passthrough()`, a `__proto__` dropped) are left to zod.
+		if (!isPlainObject(deviceResult) || !onlyKeys(deviceResult, RESULT_KEYS)) return null;
 		const { value, verdict } = deviceResult;
 		if (!(value === null || (typeof value === 'number' && Number.isFinite(value)))) return null;
 		if (!isString(verdict) || verdict.length > 20) return null;
+		f.deviceResult = { value, verdict };
 	}
 	// Plain and complete: the fields object itself is the output (an empty position is null).
+	f.samples = outSamples;
 	if (position === '') f.position = null;
 	return f as ReadingFields;
 }
