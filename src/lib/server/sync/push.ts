@@ -52,6 +52,7 @@ async function oneByOne(actor: AppendActor, run: Op[], t: Transaction) {
  * other failure, or a second one: op by op.
  */
 async function applyRun(actor: AppendActor, run: Op[], t: Transaction, likelyStored: boolean): Promise<PushResult[]> {
+	if (likelyStored) return applyChecked(actor, run, null, t);
 	let prepared: PreparedOp[];
 	try {
 		prepared = await prepareAppendOps(actor, run, t);
@@ -59,29 +60,37 @@ async function applyRun(actor: AppendActor, run: Op[], t: Transaction, likelySto
 		console.error('sync: append run failed', e);
 		return run.length === 1 ? [failed(run[0])] : oneByOne(actor, run, t);
 	}
-	if (!likelyStored) {
-		const refused = run.filter((_, i) => !hasRow(prepared[i]));
-		const stored = refused.length ? await findStored(refused, t) : new Map<string, PushResult>();
-		try {
-			const out = await savepoint(t, (sp) => applyAppendOps(actor, prepared, sp, { checkIds: false, prepared: true }));
-			return out.map((r, i) => {
-				const first = stored.get(run[i].opId);
-				return first ? duplicateOf(first) : r;
-			});
-		} catch (e) {
-			if (!isDuplicateKey(e)) {
-				console.error('sync: append run failed', e);
-				return run.length === 1 ? [failed(run[0])] : oneByOne(actor, run, t);
-			}
+	const refused = run.filter((_, i) => !hasRow(prepared[i]));
+	const stored = refused.length ? await findStored(refused, t) : new Map<string, PushResult>();
+	try {
+		const out = await savepoint(t, (sp) => applyAppendOps(actor, prepared, sp, { checkIds: false, prepared: true }));
+		return out.map((r, i) => {
+			const first = stored.get(run[i].opId);
+			return first ? duplicateOf(first) : r;
+		});
+	} catch (e) {
+		if (!isDuplicateKey(e)) {
+			console.error('sync: append run failed', e);
+			return run.length === 1 ? [failed(run[0])] : oneByOne(actor, run, t);
 		}
 	}
+	return applyChecked(actor, run, prepared, t);
+}
+
+/**
+ * The careful way: ops whose record is stored answer `duplicate`; the rest (their rows as
+ * already built, when given) go in with the id checks, or op by op after a failure.
+ */
+async function applyChecked(actor: AppendActor, run: Op[], prepared: PreparedOp[] | null, t: Transaction) {
 	const stored = await findStored(run, t);
 	const fresh = run.filter((op) => !stored.has(op.opId));
-	const freshPrepared = prepared.filter((_, i) => !stored.has(run[i].opId));
 	let applied: PushResult[] = [];
 	if (fresh.length) {
 		try {
-			applied = await savepoint(t, (sp) => applyAppendOps(actor, freshPrepared, sp, { prepared: true }));
+			const rows = prepared
+				? prepared.filter((_, i) => !stored.has(run[i].opId))
+				: await prepareAppendOps(actor, fresh, t);
+			applied = await savepoint(t, (sp) => applyAppendOps(actor, rows, sp, { prepared: true }));
 		} catch (e) {
 			console.error('sync: append run failed', e);
 			applied = await oneByOne(actor, fresh, t);
