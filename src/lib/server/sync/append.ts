@@ -17,7 +17,7 @@ import { stringifyNumbers } from '../../sync/json';
 import { isLead, type Actor } from '../auth/types';
 import { nextSeq, rawBatch, rawQuery, sqlDateTime } from '../db/feed';
 import { mayOpenJob } from '../services/access';
-import { APPEND_TABLES, type StoredAppendEntity } from './append-tables';
+import { groupByTable, type AppendTable, type StoredAppendEntity } from './append-tables';
 import { quickReadingCreate } from './quick-parse';
 
 type Ctx = { actor: Actor; t: Transaction };
@@ -44,7 +44,6 @@ const meterOf = (test: TestInfo, rangeLabel: string | null) => {
  * same record (its check and samples).
  */
 type Prepared = { op: Op; table: AppendTable; row: unknown[]; same: string; mismatch?: { device: string; server: string } };
-type AppendTable = (typeof APPEND_TABLES)[StoredAppendEntity];
 
 /** The first columns of every append-only row. */
 const BASE = ['workshop_id', 'id', 'op_id', 'created_by', 'device_id', 'device_time', 'job_id', 'test_id'] as const;
@@ -213,13 +212,7 @@ function insertRows(table: AppendTable, rows: { place: number; row: unknown[] }[
  * (`not_found` for another workshop's record).
  */
 async function refuseTakenIds(prepared: (Prepared | PushResult)[], { actor, t }: Ctx) {
-	const byTable = new Map<AppendTable, string[]>();
-	for (const p of prepared) {
-		if (!('table' in p)) continue;
-		const list = byTable.get(p.table);
-		if (list) list.push(p.op.entityId);
-		else byTable.set(p.table, [p.op.entityId]);
-	}
+	const byTable = groupByTable(prepared.filter(hasRow), (p) => p.table, (p) => p.op.entityId);
 	if (!byTable.size) return prepared;
 	// Each entity's ids in its own table, as a mutable create looks only in its own.
 	const taken = new Map<string, { workshop_id: string; same: string }>();
@@ -270,30 +263,29 @@ export const hasRow = (p: PreparedOp): p is Prepared => 'table' in p;
 export const prepareAppendOps = (actor: Actor, ops: Op[], t: Transaction): Promise<PreparedOp[]> =>
 	prepare(ops, { actor, t });
 
+/** Apply consecutive append-only ops (prepare, then insert with the id checks). */
+export async function applyAppendOps(actor: Actor, ops: Op[], t: Transaction): Promise<PushResult[]> {
+	return insertAppendOps(actor, await prepareAppendOps(actor, ops, t), t);
+}
+
 /**
- * Apply consecutive append-only ops; one result per op, in order. With `checkIds: false`
- * the ids are not looked up first: new ids are the rule, and a taken id or op id makes the
- * INSERT fail with a duplicate key (`isDuplicateKey`), after which the caller rolls back to
- * its savepoint and comes again with `checkIds: true` (the rows can be inserted again).
+ * Insert prepared append-only ops; one result per op, in order. With `checkIds: false` the
+ * ids are not looked up first: new ids are the rule, and a taken id or op id makes the INSERT
+ * fail with a duplicate key (`isDuplicateKey`), after which the caller rolls back to its
+ * savepoint and comes again with the same prepared ops and `checkIds: true`.
  */
-export async function applyAppendOps(
+export async function insertAppendOps(
 	actor: Actor,
-	ops: Op[] | PreparedOp[],
+	built: PreparedOp[],
 	t: Transaction,
-	{ checkIds = true, prepared: given = false }: { checkIds?: boolean; prepared?: boolean } = {}
+	{ checkIds = true }: { checkIds?: boolean } = {}
 ): Promise<PushResult[]> {
 	const ctx = { actor, t };
-	const built = given ? (ops as PreparedOp[]) : await prepare(ops as Op[], ctx);
 	const prepared = checkIds ? await refuseTakenIds(built, ctx) : built;
-	const ok = prepared.filter((p): p is Prepared => 'table' in p);
+	const ok = prepared.filter(hasRow);
 	if (ok.length) {
 		// Seqs follow the order of the ops: the k-th applied op gets the block's first + k.
-		const byTable = new Map<AppendTable, { place: number; row: unknown[] }[]>();
-		ok.forEach((p, place) => {
-			const list = byTable.get(p.table);
-			if (list) list.push({ place, row: p.row });
-			else byTable.set(p.table, [{ place, row: p.row }]);
-		});
+		const byTable = groupByTable(ok.map((p, place) => ({ p, place })), (x) => x.p.table, (x) => ({ place: x.place, row: x.p.row }));
 		const inserts = [...byTable].map(([table, rows]) => insertRows(table, rows, ctx));
 		const mism = ok.filter((p) => p.mismatch);
 		// The counter row stays locked from here to the commit: only the INSERTs remain.

@@ -10,7 +10,7 @@ import type { Transaction } from 'sequelize';
 import { rawQuery } from '../db/feed';
 import type { Actor } from '../auth/types';
 import type { Op, PushResult } from '../../sync/protocol';
-import { APPEND_TABLES, type StoredAppendEntity } from './append-tables';
+import { APPEND_TABLES, groupByTable, type StoredAppendEntity } from './append-tables';
 
 /**
  * First answers stored in the ledger for these opIds, by opId. With a `probe` (an
@@ -46,14 +46,7 @@ export async function findSeen(
  */
 export async function findStored(ops: Pick<Op, 'opId' | 'entity'>[], t: Transaction): Promise<Map<string, PushResult>> {
 	const stored = new Map<string, PushResult>();
-	const byTable = new Map<string, string[]>();
-	for (const op of ops) {
-		const table = APPEND_TABLES[op.entity as StoredAppendEntity];
-		if (!table) continue;
-		const list = byTable.get(table);
-		if (list) list.push(op.opId);
-		else byTable.set(table, [op.opId]);
-	}
+	const byTable = groupByTable(ops, (op) => APPEND_TABLES[op.entity as StoredAppendEntity], (op) => op.opId);
 	if (!byTable.size) return stored;
 	const rows = await rawQuery<{ op_id: string }[]>(
 		t,

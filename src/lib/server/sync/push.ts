@@ -16,7 +16,7 @@ import { rawQuery } from '../db/feed';
 import type { SessionUser } from '../auth/types';
 import { db } from '../db';
 import { isAppendOnly, type Op, type PushBody, type PushResult } from '../../sync/protocol';
-import { applyAppendOps, hasRow, isDuplicateKey, prepareAppendOps, withoutRow, type PreparedOp } from './append';
+import { applyAppendOps, hasRow, insertAppendOps, isDuplicateKey, prepareAppendOps, withoutRow, type PreparedOp } from './append';
 import { findSeen, findStored, remember } from './ledger';
 import { applyMutableOp } from './mutable';
 
@@ -63,7 +63,7 @@ async function applyRun(actor: AppendActor, run: Op[], t: Transaction, likelySto
 	const refused = run.filter((_, i) => !hasRow(prepared[i]));
 	const stored = refused.length ? await findStored(refused, t) : new Map<string, PushResult>();
 	try {
-		const out = await savepoint(t, (sp) => applyAppendOps(actor, prepared, sp, { checkIds: false, prepared: true }));
+		const out = await savepoint(t, (sp) => insertAppendOps(actor, prepared, sp, { checkIds: false }));
 		return out.map((r, i) => {
 			const first = stored.get(run[i].opId);
 			return first ? duplicateOf(first) : r;
@@ -90,7 +90,7 @@ async function applyChecked(actor: AppendActor, run: Op[], prepared: PreparedOp[
 			const rows = prepared
 				? prepared.filter((_, i) => !stored.has(run[i].opId))
 				: await prepareAppendOps(actor, fresh, t);
-			applied = await savepoint(t, (sp) => applyAppendOps(actor, rows, sp, { prepared: true }));
+			applied = await savepoint(t, (sp) => insertAppendOps(actor, rows, sp));
 		} catch (e) {
 			console.error('sync: append run failed', e);
 			applied = await oneByOne(actor, fresh, t);
