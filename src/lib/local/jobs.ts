@@ -1,7 +1,7 @@
 /** The technician's jobs as the phone holds them (IndexedDB), joined with customer and vehicle. */
-import { getRecord, listRecords, type LocalDb, type LocalRecord } from '../sync/local-db';
-import { writeLocal } from '../sync/outbox';
-import type { Me } from '../sync/session';
+import { getRecord, listRecords, type LocalDb, type LocalRecord } from '../client/local-db';
+import { writeLocal } from '../client/outbox';
+import type { Me } from '../client/session';
 import type { JobStatus } from '../schemas/job';
 
 export type FaultCode = { code: string; text: string };

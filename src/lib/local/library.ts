@@ -1,7 +1,7 @@
 /** The spec library, tests and readings as the phone holds them. */
 import type { CheckSpec } from '../flow/reading';
 import type { MeterSetup } from '../schemas/test';
-import { getMeta, getRecord, listByJob, listRecords, setMeta, type LocalDb } from '../sync/local-db';
+import { getMeta, getRecord, listByJob, listRecords, setMeta, type LocalDb } from '../client/local-db';
 
 export type Fitment = { make: string; model: string; yearFrom?: number | null; yearTo?: number | null; engineCode?: string | null };
 export type Sheet = { id: string; sheetVersion: number; checks: (CheckSpec & { label: string; from?: string | null; to?: string | null; condition: string; rangeHint?: string | null })[]; source: Record<string, string | null> | null };

@@ -1,7 +1,7 @@
 // The technician's screens render in the browser from IndexedDB, so they open with no
 // signal. The API behind them is guarded on the server as usual.
 import { redirect } from '@sveltejs/kit';
-import { local, NeedsSignIn } from '$lib/sync/session';
+import { local, NeedsSignIn } from '$lib/client/session';
 
 export const ssr = false;
 

@@ -1,6 +1,6 @@
 /** Choices for the office forms: recent customers and vehicles, and who can be assigned. */
 import type { Actor } from '$lib/server/auth/types';
-import { seesAllJobs } from '$lib/server/services/access';
+import { isLead } from '$lib/roles';
 import { read as readCustomer, searchCustomers } from '$lib/server/services/customers';
 import { listAssignable } from '$lib/server/services/jobs';
 import { readVehicle, searchVehicles } from '$lib/server/services/vehicles';
@@ -15,7 +15,7 @@ export async function jobFormOptions(
 	const [customers, vehicles, assignees] = await Promise.all([
 		searchCustomers(actor, { sort: '-updated', pageSize: 100 }),
 		searchVehicles(actor, { sort: '-updated', pageSize: 100 }),
-		seesAllJobs(actor) ? listAssignable(actor) : null
+		isLead(actor) ? listAssignable(actor) : null
 	]);
 	const customerOptions = toCustomerOptions(customers.items);
 	const vehicleOptions: Option[] = vehicles.items.map((v) => ({

@@ -1,9 +1,9 @@
 import 'fake-indexeddb/auto';
 import { v7 as uuidv7 } from 'uuid';
 import { describe, expect, it } from 'vitest';
-import { applyChanges, backoffMs, SyncEngine } from '../../../src/lib/sync/engine';
-import { getMeta, getRecord, openLocalDb } from '../../../src/lib/sync/local-db';
-import { countOutbox, listOutbox, writeLocal } from '../../../src/lib/sync/outbox';
+import { applyChanges, backoffMs, SyncEngine } from '../../../src/lib/client/engine';
+import { getMeta, getRecord, openLocalDb } from '../../../src/lib/client/local-db';
+import { countOutbox, listOutbox, writeLocal } from '../../../src/lib/client/outbox';
 import type { Op } from '../../../src/lib/sync/protocol';
 
 type Handler = (url: string, body: { ops?: Op[] } | null) => Response | Promise<Response>;

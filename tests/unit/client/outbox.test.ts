@@ -1,8 +1,8 @@
 import 'fake-indexeddb/auto';
 import { v7 as uuidv7 } from 'uuid';
 import { describe, expect, it } from 'vitest';
-import { dbNameFor, getRecord, openLocalDb, type LocalDb } from '../../../src/lib/sync/local-db';
-import { countOutbox, listOutbox, writeLocal } from '../../../src/lib/sync/outbox';
+import { dbNameFor, getRecord, openLocalDb, type LocalDb } from '../../../src/lib/client/local-db';
+import { countOutbox, listOutbox, writeLocal } from '../../../src/lib/client/outbox';
 
 const fresh = () => openLocalDb(uuidv7());
 

@@ -5,7 +5,7 @@ import {
 	listOpenConflicts,
 	pushToMemory,
 	recordKey
-} from '$lib/sync/memory-server';
+} from '../../helpers/memory-server';
 import { resultSchema } from '$lib/sync/protocol';
 import { JOB_FIELDS, JOB_ID, OFFICE, PHONE_A, PHONE_B, makeOp, uuid7 } from './fixtures';
 

@@ -27,7 +27,7 @@ import {
 	recordKey,
 	type MemoryPush,
 	type MemoryServer
-} from '$lib/sync/memory-server';
+} from '../../helpers/memory-server';
 import type { Op } from '$lib/sync/protocol';
 import {
 	JOB_FIELDS,

@@ -1,4 +1,4 @@
-import type { Role } from '../db/models';
+import type { Role } from '../../roles';
 
 /** The signed-in user as kept in `event.locals` (no secrets). */
 export type SessionUser = {
@@ -23,5 +23,4 @@ export function actorOf(user: SessionUser, deviceId: string | null = 'web'): Act
 	return { userId: user.id, workshopId: user.workshopId, role: user.role, deviceId };
 }
 
-/** Leads and owners: they see the whole workshop, approve, sign off and settle clashes. */
-export const isLead = (a: Pick<Actor, 'role'>) => a.role === 'lead' || a.role === 'owner';
+export { isLead } from '../../roles';

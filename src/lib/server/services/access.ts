@@ -16,15 +16,12 @@ import { Job, User } from '../db/models';
 import { ForbiddenError, NotFoundError, ValidationError } from '../errors';
 import type { JobStatus } from '../../schemas/job';
 
-/** Leads and owners see the whole workshop; others see the jobs assigned to them. */
-export const seesAllJobs = isLead;
-
 /** Roles a job can be assigned to. */
 export const ASSIGNABLE_ROLES = ['technician', 'apprentice'] as const;
 
 /** Whether `actor` may read (and so change) a job with this assignee. */
 export function mayOpenJob(actor: Actor, job: { assigneeId?: unknown }): boolean {
-	return seesAllJobs(actor) || job.assigneeId === actor.userId;
+	return isLead(actor) || job.assigneeId === actor.userId;
 }
 
 /**
@@ -46,7 +43,7 @@ export async function loadJobForWrite(actor: Actor, id: string, t?: Transaction)
 /** Refuse a status change the actor's role does not allow (403). */
 export function assertStatusChange(actor: Actor, from: JobStatus, to: JobStatus): void {
 	if (from === to) return;
-	if (from === 'closed' && !seesAllJobs(actor))
+	if (from === 'closed' && !isLead(actor))
 		throw new ForbiddenError('Only a workshop lead reopens a closed job');
 	if (to === 'closed' && actor.role === 'apprentice')
 		throw new ForbiddenError('A technician or a workshop lead closes the job');
@@ -63,7 +60,7 @@ export async function assertAssignee(
 	current?: string | null
 ): Promise<void> {
 	if (current !== undefined && assigneeId === current) return;
-	if (!seesAllJobs(actor) && assigneeId !== actor.userId)
+	if (!isLead(actor) && assigneeId !== actor.userId)
 		throw new ForbiddenError('Only a workshop lead assigns a job to someone else');
 	if (assigneeId === null) return;
 	const user = await User.findOne({

@@ -25,9 +25,9 @@ import {
 	assertAssignee,
 	assertStatusChange,
 	loadJobForWrite,
-	mayOpenJob,
-	seesAllJobs
+	mayOpenJob
 } from './access';
+import { isLead } from '../../roles';
 import { inOrder, likeOf, orderBy, pageOfIds, Where } from './list-sql';
 import { defineAggregate } from './write-path';
 
@@ -139,7 +139,7 @@ async function ownerOf(actor: Actor, vehicleId: string): Promise<string | null> 
  */
 export async function addJob(actor: Actor, input: unknown) {
 	const fields = ownFields(input);
-	if (!seesAllJobs(actor) && !('assigneeId' in fields)) fields.assigneeId = actor.userId;
+	if (!isLead(actor) && !('assigneeId' in fields)) fields.assigneeId = actor.userId;
 	const parsed = parse<Refs & { assigneeId?: string | null; status: JobStatus }>(jobCreate, fields);
 	await assertAssignee(actor, parsed.assigneeId ?? null);
 	assertStatusChange(actor, 'open', parsed.status);
@@ -269,7 +269,7 @@ const nextDay = (day: string) =>
 
 function jobFilter(actor: Actor, q: JobListQuery): Where {
 	const where = new Where().and('j.workshop_id = ?', actor.workshopId).and('j.deleted_at IS NULL');
-	if (!seesAllJobs(actor)) where.and('j.assignee_id = ?', actor.userId);
+	if (!isLead(actor)) where.and('j.assignee_id = ?', actor.userId);
 	if (q.status === 'active') where.and("j.status <> 'closed'");
 	else if (q.status !== 'all') where.and('j.status = ?', q.status);
 	if (q.assignee === 'me') where.and('j.assignee_id = ?', actor.userId);

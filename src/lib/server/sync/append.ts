@@ -15,7 +15,8 @@ import { readingCreate, signoffCreate, sparkTestCreate, swapTestCreate } from '.
 import type { Op, PushResult, Reason } from '../../sync/protocol';
 import { stringifyNumbers } from '../../sync/json';
 import { isLead, type Actor } from '../auth/types';
-import { nextSeq, rawBatch, rawQuery, sqlDateTime } from '../db/feed';
+import { nextSeq } from '../db/feed';
+import { rawBatch, rawQuery, sqlDateTime } from '../db/raw';
 import { mayOpenJob } from '../services/access';
 import { groupByTable, type AppendTable, type StoredAppendEntity } from './append-tables';
 import { quickReadingCreate } from './quick-parse';

@@ -7,7 +7,7 @@
  * These run on the transaction's driver connection (the sync hot path).
  */
 import type { Transaction } from 'sequelize';
-import { rawQuery } from '../db/feed';
+import { rawQuery } from '../db/raw';
 import type { Actor } from '../auth/types';
 import type { Op, PushResult } from '../../sync/protocol';
 import { APPEND_TABLES, groupByTable, type StoredAppendEntity } from './append-tables';

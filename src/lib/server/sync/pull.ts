@@ -11,7 +11,8 @@ import { ValidationError } from '../errors';
 import type { Change } from '../../sync/protocol';
 import { APPEND_TABLES } from './append-tables';
 import { appendRecord } from './records';
-import { scopeOf, seesWorkshop, visible, type FeedRow } from './scope';
+import { isLead } from '../../roles';
+import { scopeOf, visible, type FeedRow } from './scope';
 
 export async function lastSeq(workshopId: string): Promise<number> {
 	const [row] = await db().query<{ last_seq: number | bigint }>('SELECT last_seq FROM change_counters WHERE workshop_id = ?', {
@@ -53,7 +54,7 @@ export async function pullChanges(user: SessionUser, cursor: number, limit: numb
 	if (cursor > last) throw new ValidationError({ cursor: `Ahead of the feed (last is ${last})` }, 'Cursor ahead of the feed');
 	const read = await readFeed(user.workshopId, cursor, limit);
 	const page = read.slice(0, limit);
-	const scope = seesWorkshop(user) ? null : await scopeOf(user);
+	const scope = isLead(user) ? null : await scopeOf(user);
 	const changes: Change[] = page
 		.filter((r) => visible(r, user, scope))
 		.map((r) => ({ seq: r.seq, entity: r.entity as Change['entity'], entityId: r.entityId, version: r.version, op: r.op, record: r.record }));

@@ -12,7 +12,7 @@
  *  4. the first answers go into the ledger in the same transaction as their effects.
  */
 import type { Transaction } from 'sequelize';
-import { rawQuery } from '../db/feed';
+import { rawQuery } from '../db/raw';
 import type { SessionUser } from '../auth/types';
 import { db } from '../db';
 import { isAppendOnly, type Op, type PushBody, type PushResult } from '../../sync/protocol';

@@ -16,7 +16,6 @@ import { appendRecord } from './records';
 
 export type FeedRow = { seq: number; entity: string; entityId: string; version: number; op: 'upsert' | 'delete' | 'evict'; jobId: string | null; audience: string | null; record: Record<string, unknown> | null };
 
-export { isLead as seesWorkshop } from '../auth/types';
 
 /** The ids a technician's pull is scoped to. */
 export async function scopeOf(user: SessionUser) {

@@ -1,5 +1,5 @@
 import { getMeters } from '$lib/local/library';
-import { local } from '$lib/sync/session';
+import { local } from '$lib/client/session';
 
 export async function load({ parent, url }) {
 	const { me } = await parent();

@@ -1,5 +1,5 @@
-import { listOutbox } from '$lib/sync/outbox';
-import { local } from '$lib/sync/session';
+import { listOutbox } from '$lib/client/outbox';
+import { local } from '$lib/client/session';
 
 export async function load({ parent }) {
 	const { me } = await parent();

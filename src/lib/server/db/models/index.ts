@@ -10,8 +10,8 @@ import { jsonText } from './json-text';
 import { initTest, Test } from './test';
 export { Test };
 
-export const ROLES = ['apprentice', 'technician', 'lead', 'owner'] as const;
-export type Role = (typeof ROLES)[number];
+import { ROLES, type Role } from '../../../roles';
+export { ROLES, type Role };
 
 export class Workshop extends Model {
 	declare id: string;

@@ -1,7 +1,7 @@
 import { error } from '@sveltejs/kit';
 import { readJob } from '$lib/local/jobs';
-import { listByJob } from '$lib/sync/local-db';
-import { local } from '$lib/sync/session';
+import { listByJob } from '$lib/client/local-db';
+import { local } from '$lib/client/session';
 
 export async function load({ params, parent }) {
 	const { me } = await parent();

@@ -1,6 +1,6 @@
 import { error } from '@sveltejs/kit';
 import { readJob } from '$lib/local/jobs';
-import { local } from '$lib/sync/session';
+import { local } from '$lib/client/session';
 
 export async function load({ params, parent }) {
 	const { me } = await parent();

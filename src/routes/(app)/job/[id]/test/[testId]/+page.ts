@@ -1,8 +1,8 @@
 import { error } from '@sveltejs/kit';
 import { readJob } from '$lib/local/jobs';
 import { listUnder, readSheet } from '$lib/local/library';
-import { getRecord } from '$lib/sync/local-db';
-import { local } from '$lib/sync/session';
+import { getRecord } from '$lib/client/local-db';
+import { local } from '$lib/client/session';
 
 export async function load({ params, parent }) {
 	const { me } = await parent();

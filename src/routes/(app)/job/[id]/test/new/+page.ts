@@ -1,7 +1,7 @@
 import { error } from '@sveltejs/kit';
 import { readJob } from '$lib/local/jobs';
 import { getLeadZero, getMeters, listParts } from '$lib/local/library';
-import { local } from '$lib/sync/session';
+import { local } from '$lib/client/session';
 
 export async function load({ params, parent }) {
 	const { me } = await parent();

@@ -3,7 +3,7 @@
  * phone never holds a change it will not send, nor sends one it does not hold.
  */
 import { v7 as uuidv7 } from 'uuid';
-import { isAppendOnly, type Entity, type Op } from './protocol';
+import { isAppendOnly, type Entity, type Op } from '../sync/protocol';
 import type { LocalDb, LocalRecord, OutboxEntry } from './local-db';
 
 export type LocalWrite = {

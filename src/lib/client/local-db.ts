@@ -11,7 +11,7 @@
  * - `meta`: the pull cursor, the device id, the last sync.
  */
 import { openDB, type DBSchema, type IDBPDatabase } from 'idb';
-import type { Entity, Op, PushResult } from './protocol';
+import type { Entity, Op, PushResult } from '../sync/protocol';
 
 export type LocalRecord = {
 	entity: Entity;

@@ -9,8 +9,8 @@
  *     that a retry may apply; `mergeOp` never answers it).
  * Used by the property tests; the real server keeps the same steps in one transaction.
  */
-import type { Change, Entity, Op, PushResult, Status } from './protocol';
-import { mergeOp, type Conflict, type RecordState } from './merge';
+import type { Change, Entity, Op, PushResult, Status } from '../../src/lib/sync/protocol';
+import { mergeOp, type Conflict, type RecordState } from '../../src/lib/sync/merge';
 
 /** A stored record: which entity, which id, its merge state. */
 export type MemoryRecord = { entity: Entity; entityId: string; state: RecordState };

@@ -14,7 +14,7 @@
  */
 import { getMeta, setMeta, type LocalDb, type LocalRecord } from './local-db';
 import { countOutbox, peekOutbox } from './outbox';
-import { PUSH_BATCH, type Change, type Op, type PushResult } from './protocol';
+import { PUSH_BATCH, type Change, type Op, type PushResult } from '../sync/protocol';
 
 export type SyncState = 'idle' | 'syncing' | 'offline' | 'signed_out' | 'error';
 export type SyncReport = { state: SyncState; pushed: number; pulled: number; waiting: number; issues: number; error?: string };
