@@ -15,7 +15,7 @@ export default defineConfig({
 				name: 'Fieldbench',
 				short_name: 'Fieldbench',
 				description: 'Log electrical component tests on a phone, offline, and sync them to the workshop.',
-				start_url: '/home',
+				start_url: '/field',
 				scope: '/',
 				display: 'standalone',
 				orientation: 'portrait',
@@ -40,7 +40,7 @@ export default defineConfig({
 					{
 						// The technician's screens (their HTML holds no data): wait 4 s at most.
 						urlPattern: ({ request, url }) =>
-							request.mode === 'navigate' && /^\/(home|job|sync)(\/|$)/.test(url.pathname),
+							request.mode === 'navigate' && /^\/(field|home|job|sync|meters)(\/|$)/.test(url.pathname),
 						handler: 'NetworkFirst',
 						options: {
 							cacheName: 'app-screens',

@@ -140,10 +140,10 @@ async function prepare(profile: string, base: string) {
 		await page.getByLabel('E-mail').fill(TECH);
 		await page.getByLabel('Password').fill(DEMO_PASSWORD);
 		await page.getByRole('button', { name: 'Sign in' }).click();
-		await page.waitForURL(`${base}/home`);
+		await page.waitForURL(`${base}/field`);
 		await page.getByTestId('job-list').getByText('Job 1001').waitFor({ timeout: 30_000 });
 
-		await page.goto(`${base}/job/${JOB}/test/new`);
+		await page.goto(`${base}/field/job/${JOB}/test/new`);
 		await page.getByLabel('Part number as read off the part').fill('TB-IC');
 		await page
 			.getByTestId('parts')
@@ -156,7 +156,7 @@ async function prepare(profile: string, base: string) {
 		const captureUrl = page.url();
 		await page.getByTestId('keypad').waitFor();
 
-		const homeJs = await measureJs(context, page, `${base}/home`, () =>
+		const homeJs = await measureJs(context, page, `${base}/field`, () =>
 			page.getByTestId('job-list').getByText('Job 1001').waitFor()
 		);
 		const captureJs = await measureJs(context, page, captureUrl, () =>
@@ -348,7 +348,7 @@ async function main() {
 
 		mkdirSync(OUT, { recursive: true });
 		const screens = [
-			{ name: 'home', url: `${base}/home`, js: homeJs },
+			{ name: 'home', url: `${base}/field`, js: homeJs },
 			{ name: 'capture', url: captureUrl, js: captureJs }
 		];
 		const results: { name: string; js: JsLoad; lh: LhResult; perfs: number[] }[] = [];

@@ -50,7 +50,7 @@ export async function shot(page: Page, name: string) {
 	await page.screenshot({ path: path.join(SHOTS, `${name}.png`) });
 }
 
-/** Sign in through the form as a demo user (cookies cleared first) and land on /home. */
+/** Sign in through the form as a demo user (cookies cleared first) and land on /field. */
 export async function signInAs(phone: { page: Page; context: BrowserContext }, base: string, email: string) {
 	const { DEMO_PASSWORD } = await import('../../src/lib/server/seed/demo');
 	await phone.context.clearCookies();
@@ -58,5 +58,5 @@ export async function signInAs(phone: { page: Page; context: BrowserContext }, b
 	await phone.page.getByLabel('E-mail').fill(email);
 	await phone.page.getByLabel('Password').fill(DEMO_PASSWORD);
 	await phone.page.getByRole('button', { name: 'Sign in' }).click();
-	await phone.page.waitForURL(`${base}/home`);
+	await phone.page.waitForURL(`${base}/field`);
 }

@@ -66,7 +66,7 @@ describe('the test flow', () => {
 	it('starts a coil test offline with the part, the meter, the leads and the temperature', async () => {
 		const { page, context } = phone;
 		await context.setOffline(true);
-		await page.goto(`${base}/job/${JOB}/test/new`);
+		await page.goto(`${base}/field/job/${JOB}/test/new`);
 		await page.getByLabel('Part number as read off the part').fill('TB-IC');
 		await page.getByTestId('parts').getByRole('button', { name: /TB-IC-2041/ }).click();
 		// Add a range to the meter from its accuracy table; it is kept on the phone.
@@ -78,7 +78,7 @@ describe('the test flow', () => {
 		await last.getByLabel('± % of reading').fill('0,8');
 		await last.getByLabel('+ counts').fill('1');
 		await page.getByRole('button', { name: 'Save meters' }).click();
-		await page.waitForURL(`${base}/job/${JOB}/test/new`);
+		await page.waitForURL(`${base}/field/job/${JOB}/test/new`);
 		await page.getByLabel('Part number as read off the part').fill('TB-IC');
 		await page.getByTestId('parts').getByRole('button', { name: /TB-IC-2041/ }).click();
 		await page.getByLabel('Lead resistance in ohms').fill('0,2');
@@ -161,7 +161,7 @@ describe('the test flow', () => {
 
 	it('records a spark test per cylinder behind its caution, and a swap test', async () => {
 		const { page } = phone;
-		await page.goto(`${base}/job/${JOB}/spark`);
+		await page.goto(`${base}/field/job/${JOB}/spark`);
 		await page.getByRole('checkbox').check();
 		await page.getByLabel('Tester gap (mm)').fill('7');
 		await page.getByTestId('kv').waitFor();
@@ -170,9 +170,9 @@ describe('the test flow', () => {
 		expect(await smallTargets()).toEqual([]);
 		await shot(page, 'capture-5-spark');
 		await page.getByRole('button', { name: 'Save the spark test' }).click();
-		await page.waitForURL(`${base}/job/${JOB}`);
+		await page.waitForURL(`${base}/field/job/${JOB}`);
 
-		await page.goto(`${base}/job/${JOB}/swap`);
+		await page.goto(`${base}/field/job/${JOB}/swap`);
 		await page.getByLabel('Coil from cylinder').selectOption('3');
 		await page.getByLabel('to cylinder').selectOption('1');
 		for (let i = 0; i < 5; i++) await page.getByRole('button', { name: 'Before the swap: more on cylinder 3' }).click();
@@ -180,7 +180,7 @@ describe('the test flow', () => {
 		expect(await page.getByTestId('swap-conclusion').textContent()).toContain('followed the coil');
 		await shot(page, 'capture-6-swap');
 		await page.getByRole('button', { name: 'Save the swap test' }).click();
-		await page.waitForURL(`${base}/job/${JOB}`);
+		await page.waitForURL(`${base}/field/job/${JOB}`);
 		await expect.poll(() => page.getByTestId('sync-badge').textContent()).toMatch(/\d+ waiting to send/);
 	});
 
@@ -190,7 +190,7 @@ describe('the test flow', () => {
 			if (r.status() === 401) console.log('401 from', r.url());
 		});
 		await context.setOffline(false);
-		await page.goto(`${base}/sync`);
+		await page.goto(`${base}/field/sync`);
 		await page.getByRole('button', { name: 'Sync now' }).click();
 		await expect.poll(() => page.getByTestId('sync-badge').textContent(), { timeout: 20_000 }).toContain('All sent');
 		const env = inject('dbEnv');

@@ -40,7 +40,7 @@ describe('the offline app', () => {
 
 	it('reloads a job’s deep URL with no signal and takes a status change and a note', async () => {
 		const { page, context } = phone;
-		await page.goto(`${base}/job/${JOB_1001}`);
+		await page.goto(`${base}/field/job/${JOB_1001}`);
 		await page.getByTestId('complaint').waitFor();
 		await context.setOffline(true);
 		await page.reload();
@@ -59,7 +59,7 @@ describe('the offline app', () => {
 		expect(await badge().textContent()).toContain('2 waiting to send');
 		await shot(page, 'offline-4-reloaded-offline');
 		await badge().click();
-		await page.waitForURL(`${base}/sync`);
+		await page.waitForURL(`${base}/field/sync`);
 		await expect.poll(() => page.getByTestId('waiting').locator('li').count()).toBe(2);
 		await shot(page, 'offline-5-waiting-to-send');
 	});

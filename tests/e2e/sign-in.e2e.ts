@@ -89,7 +89,7 @@ describe('sign-in at phone size', () => {
 		await page.getByRole('link', { name: 'Sign out' }).click();
 		await page.getByRole('button', { name: 'Sign out' }).click();
 		await page.waitForURL(`${base}/sign-in`);
-		await page.goto(`${base}/home`);
+		await page.goto(`${base}/field`);
 		expect(page.url()).toContain('/sign-in?next=');
 	});
 });

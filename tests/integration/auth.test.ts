@@ -31,7 +31,7 @@ describe('signing in', () => {
 		const c = client();
 		const r = await c.signIn(a.users.technician.email, TEST_PASSWORD);
 		expect(r.status).toBe(303);
-		expect(r.headers.get('location')).toBe('/home');
+		expect(r.headers.get('location')).toBe('/field');
 		const cookie = r.headers.getSetCookie().find((x) => x.startsWith('fb_session='))!;
 		expect(cookie).toMatch(/HttpOnly/i);
 		expect(cookie).toMatch(/SameSite=Lax/i);
@@ -120,9 +120,23 @@ describe('guards', () => {
 	});
 
 	it('sends a signed-out visitor of a page to sign-in', async () => {
-		const r = await client().get('/home', 'text/html');
+		const r = await client().get('/field', 'text/html');
 		expect(r.status).toBe(303);
-		expect(r.headers.get('location')).toBe('/sign-in?next=%2Fhome');
+		expect(r.headers.get('location')).toBe('/sign-in?next=%2Ffield');
+	});
+
+	it('sends the old addresses of the phone screens on to /field', async () => {
+		const c = client();
+		for (const [from, to] of [
+			['/home', '/field'],
+			['/job/abc/test/new?x=1', '/field/job/abc/test/new?x=1'],
+			['/sync', '/field/sync'],
+			['/meters?back=/field', '/field/meters?back=/field']
+		]) {
+			const r = await c.get(from, 'text/html');
+			expect(r.status, from).toBe(308);
+			expect(r.headers.get('location'), from).toBe(to);
+		}
 	});
 
 	it('gives a technician 403 on the lead page and on a lead-only action', async () => {

@@ -9,7 +9,7 @@ const form = z.object({
 });
 
 const safeNext = (n: string | null) =>
-	n && n.startsWith('/') && !n.startsWith('//') ? n : '/home';
+	n && n.startsWith('/') && !n.startsWith('//') ? n : '/field';
 
 export function load({ locals, url }) {
 	if (locals.user) redirect(303, safeNext(url.searchParams.get('next')));

@@ -4,5 +4,5 @@ import { local } from '$lib/client/session';
 export async function load({ parent, url }) {
 	const { me } = await parent();
 	const { db } = await local();
-	return { me, meters: await getMeters(db), back: url.searchParams.get('back') ?? '/home' };
+	return { me, meters: await getMeters(db), back: url.searchParams.get('back') ?? '/field' };
 }

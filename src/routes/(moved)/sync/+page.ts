@@ -1,0 +1,5 @@
+import { redirect } from '@sveltejs/kit';
+
+export function load({ url }) {
+	redirect(308, `/field/sync${url.search}`);
+}
