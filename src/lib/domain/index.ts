@@ -10,3 +10,4 @@ export * from './spec';
 export * from './compare';
 export * from './spark';
 export * from './vin';
+export * from './battery';
