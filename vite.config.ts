@@ -2,7 +2,7 @@ import { sveltekit } from '@sveltejs/kit/vite';
 import tailwindcss from '@tailwindcss/vite';
 import { SvelteKitPWA } from '@vite-pwa/sveltekit';
 import { defineConfig } from 'vitest/config';
-import { readPalette } from './scripts/lib/palette';
+import { readPalette } from './scripts/lib/palette.js';
 
 // The installed app's colours are the palette's (src/app.css): paper behind the splash, ink bar.
 const palette = readPalette();

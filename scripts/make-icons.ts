@@ -9,7 +9,7 @@
  */
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { chromium } from 'playwright-core';
-import { readPalette } from './lib/palette';
+import { readPalette } from './lib/palette.js';
 
 const { ink, paper } = readPalette();
 

@@ -6,7 +6,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { readPalette } from '../../../scripts/lib/palette';
+import { readPalette } from '../../../scripts/lib/palette.js';
 
 const palette = readPalette();
 const PNG_SIGNATURE = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]);
