@@ -29,7 +29,7 @@ export type NavCount = 'clashes';
 export type NavFeature = 'lead-desk';
 
 export type NavEntry = {
-	/** What the place is called, as on its page's heading. */
+	/** What the place is called; its page's heading says the same or more (Team: "Workshop team"). */
 	label: string;
 	/** A shorter label for the phone's bottom bar (about 10 characters fit). */
 	short?: string;
