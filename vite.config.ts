@@ -2,6 +2,10 @@ import { sveltekit } from '@sveltejs/kit/vite';
 import tailwindcss from '@tailwindcss/vite';
 import { SvelteKitPWA } from '@vite-pwa/sveltekit';
 import { defineConfig } from 'vitest/config';
+import { readPalette } from './scripts/lib/palette.js';
+
+// The installed app's colours are the palette's (src/app.css): paper behind the splash, ink bar.
+const palette = readPalette();
 
 export default defineConfig({
 	plugins: [
@@ -19,11 +23,13 @@ export default defineConfig({
 				scope: '/',
 				display: 'standalone',
 				orientation: 'portrait',
-				background_color: '#fbfaf6',
-				theme_color: '#0b1f2a',
+				background_color: palette.paper,
+				theme_color: palette.ink,
+				// Made by scripts/make-icons.ts.
 				icons: [
 					{ src: '/icons/icon-192.png', sizes: '192x192', type: 'image/png', purpose: 'any' },
 					{ src: '/icons/icon-512.png', sizes: '512x512', type: 'image/png', purpose: 'any' },
+					{ src: '/icons/maskable-192.png', sizes: '192x192', type: 'image/png', purpose: 'maskable' },
 					{ src: '/icons/maskable-512.png', sizes: '512x512', type: 'image/png', purpose: 'maskable' }
 				]
 			},

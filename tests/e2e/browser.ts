@@ -60,3 +60,29 @@ export async function signInAs(phone: { page: Page; context: BrowserContext }, b
 	await phone.page.getByRole('button', { name: 'Sign in' }).click();
 	await phone.page.waitForURL(`${base}/field`);
 }
+
+export const DESK = { width: 1280, height: 800 };
+
+/** A browser at `size` (the phone's 390×844 with touch, or a desk's 1280×800 with a mouse). */
+export async function openAt(size: 'phone' | 'desk') {
+	if (size === 'phone') return openPhone();
+	const profile = mkdtempSync(path.join(tmpdir(), 'fieldbench-e2e-'));
+	const context = await chromium.launchPersistentContext(profile, {
+		executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
+		headless: true,
+		viewport: DESK,
+		args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync']
+	});
+	const page = context.pages()[0] ?? (await context.newPage());
+	const errors: string[] = [];
+	page.on('pageerror', (e) => errors.push(e.message));
+	return {
+		context,
+		page,
+		errors,
+		close: async () => {
+			await context.close();
+			rmSync(profile, { recursive: true, force: true });
+		}
+	};
+}

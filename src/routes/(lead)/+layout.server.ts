@@ -1,6 +1,8 @@
 import { guardPage, LEADS } from '$lib/server/auth/guards';
+import { navCounts } from '$lib/server/nav';
 
-export function load(event) {
+/** The lead's desk: workshop leads and owners only (every action checks again). */
+export async function load(event) {
 	const user = guardPage(event, LEADS);
-	return { user };
+	return { user, navCounts: await navCounts(user) };
 }
