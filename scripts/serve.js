@@ -1,8 +1,9 @@
 /**
  * Serve the built app (`lib/app-process.js`: adapter-node's handler behind node's HTTP
  * server) from several processes sharing one port through `node:cluster`: WEB_CONCURRENCY
- * processes, by default one per core (at most 4). The app keeps nothing in memory between requests — sessions, sign-in throttles and the
- * per-device sync lock live in MariaDB — so any process may answer any request.
+ * processes, by default one per core (at most 4). The app keeps nothing in memory between
+ * requests — sessions, sign-in throttles and the per-device sync lock live in MariaDB — so
+ * any process may answer any request.
  *
  * The app processes get APP_NODE_FLAGS (default `DEFAULT_FLAGS` below). A process that ends
  * unexpectedly is replaced, a little later each time it happens again within a minute, and
@@ -22,15 +23,10 @@ import os from 'node:os';
  * `npm run bench:sync` measured about 20 % more readings per second and a quarter less CPU
  * in the app (2 cores; README, "Benchmarks"). Costs about 64 MiB of memory per process.
  */
-const DEFAULT_FLAGS = [
-	'--max-semi-space-size=32',
-	'--min-semi-space-size=32',
-	'--single-threaded-gc'
-];
+const DEFAULT_FLAGS = ['--max-semi-space-size=32', '--min-semi-space-size=32', '--single-threaded-gc'];
 
 const wanted = Number(process.env.WEB_CONCURRENCY);
-const count =
-	Number.isInteger(wanted) && wanted > 0 ? wanted : Math.min(os.availableParallelism(), 4);
+const count = Number.isInteger(wanted) && wanted > 0 ? wanted : Math.min(os.availableParallelism(), 4);
 const flags =
 	process.env.APP_NODE_FLAGS === undefined
 		? DEFAULT_FLAGS
@@ -65,9 +61,7 @@ if (cluster.isWorker) {
 		// Back off while they keep ending: 0.5 s, 1 s, 2 s … up to 30 s; reset after a calm minute.
 		delay = now - lastExit > 60_000 ? 0 : Math.min(Math.max(delay * 2, 500), 30_000);
 		lastExit = now;
-		console.error(
-			`App process ${worker.process.pid} ended (${signal ?? code}); starting another${delay ? ` in ${delay / 1000} s` : ''}.`
-		);
+		console.error(`App process ${worker.process.pid} ended (${signal ?? code}); starting another${delay ? ` in ${delay / 1000} s` : ''}.`);
 		setTimeout(fork, delay);
 	});
 	for (const sig of ['SIGINT', 'SIGTERM']) {
