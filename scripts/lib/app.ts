@@ -54,10 +54,7 @@ export function buildIfNeeded(force = false): boolean {
 	if (!stale) return false;
 	console.log('Building the app…');
 	for (let attempt = 0; ; attempt++) {
-		const r = spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], {
-			cwd: ROOT,
-			encoding: 'utf8'
-		});
+		const r = spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: ROOT, encoding: 'utf8' });
 		process.stdout.write(r.stdout ?? '');
 		process.stderr.write(r.stderr ?? '');
 		if (r.status === 0) break;
