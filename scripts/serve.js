@@ -21,7 +21,7 @@ import os from 'node:os';
  * (growing from 1 MiB) it was copied and promoted at almost every scavenge, and the
  * background collector threads competed with the requests for the cores. With these flags
  * `npm run bench:sync` measured about 20 % more readings per second and a quarter less CPU
- * in the app (2 cores; README, "Benchmarks"). Costs about 64 MiB of memory per process.
+ * in the app (2 cores; docs/benchmarks.md). Costs about 64 MiB of memory per process.
  */
 const DEFAULT_FLAGS = ['--max-semi-space-size=32', '--min-semi-space-size=32', '--single-threaded-gc'];
 

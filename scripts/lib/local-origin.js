@@ -25,13 +25,20 @@ export const PROTOCOL_HEADER = 'x-fieldbench-protocol';
 
 const LOOPBACK_NAMES = new Set(['localhost', '127.0.0.1', '[::1]']);
 
-/** Whether `host` (the address the server listens on) is only reachable from this machine. */
+/**
+ * Whether `host` (the address the server listens on) is only reachable from this machine.
+ * @param {string} host
+ */
 export function isLoopback(host) {
 	return host === 'localhost' || host === '::1' || /^127\.\d+\.\d+\.\d+$/.test(host);
 }
 
-/** The name in a Host header (`localhost:3000` → `localhost`, `[::1]:3000` → `[::1]`), or null. */
+/**
+ * The name in a Host header (`localhost:3000` → `localhost`, `[::1]:3000` → `[::1]`), or null.
+ * @param {string | string[] | undefined} hostHeader
+ */
 export function hostName(hostHeader) {
+	if (Array.isArray(hostHeader)) return null;
 	if (!hostHeader) return null;
 	try {
 		return new URL(`http://${hostHeader}`).hostname.toLowerCase();
@@ -43,6 +50,7 @@ export function hostName(hostHeader) {
 /**
  * How requests are prepared, from the server's environment: `perRequest` when the origin is
  * derived from each request, and `loopbackOnly` when only loopback names are answered.
+ * @param {Record<string, string | undefined>} env
  */
 export function originMode(env) {
 	const perRequest = !env.ORIGIN && !env.PROTOCOL_HEADER;
