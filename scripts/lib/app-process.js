@@ -10,6 +10,10 @@
  *  3. on SIGTERM/SIGINT, as adapter-node's own server does: stop taking connections, close
  *     idle ones (and each one as its request ends), close the rest after SHUTDOWN_TIMEOUT
  *     (30 s), then emit `sveltekit:shutdown` (the app closes its database pool on it).
+ *
+ * adapter-node's handler settings (ORIGIN, ADDRESS_HEADER, BODY_SIZE_LIMIT, …) apply as
+ * usual; the settings of its own server (SOCKET_PATH, socket activation, IDLE_TIMEOUT,
+ * KEEP_ALIVE_TIMEOUT, HEADERS_TIMEOUT) do not, as that server is not used.
  */
 import http from 'node:http';
 import path from 'node:path';

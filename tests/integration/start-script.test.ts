@@ -1,13 +1,14 @@
 /**
  * `npm start` as a person runs it (scripts/start.ts), on a port other than the one asked for:
- * one address, printed once, last; sign-in works at both loopback names on that port.
+ * one address, printed once, last; sign-in works at both loopback names on that port; Ctrl+C
+ * stops the app.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import net from 'node:net';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { freePort } from '../../scripts/lib/app';
-import { dropDatabase, ROOT } from '../../scripts/lib/mariadb';
+import { dropDatabase, portFree, ROOT } from '../../scripts/lib/mariadb';
 import { DEMO_PASSWORD, DEMO_USERS } from '../../src/lib/server/seed/demo';
 import { Client } from '../helpers/http';
 
@@ -87,4 +88,16 @@ describe('npm start', () => {
 		});
 		expect(r.status).toBe(403);
 	});
+
+	it('stops the app on Ctrl+C (SIGINT), and its port comes free', async () => {
+		const port = Number(new URL(url).port);
+		const ended = new Promise((r) => child.once('exit', r));
+		process.kill(-child.pid!, 'SIGINT');
+		await ended;
+		const deadline = Date.now() + 20_000;
+		while (!(await portFree(port))) {
+			expect(Date.now(), 'the app still holds its port').toBeLessThan(deadline);
+			await new Promise((r) => setTimeout(r, 200));
+		}
+	}, 30_000);
 });

@@ -101,10 +101,15 @@ describe('the closing line of the test run', () => {
 	});
 
 	it('ends the run with a clean line when everything passed', () => {
+		// The same report cut down to the file that passed, as vitest reports a clean run.
+		const r = report();
+		const passing = r.testResults.filter((f) => f.name.endsWith('passes.test.ts'));
+		expect(passing).toHaveLength(1);
 		const clean = path.join(dir, 'clean');
 		mkdirSync(clean);
-		const status = runFixtures(['passes.test.ts'], path.join(clean, 'e2e.json'));
-		writeFileSync(path.join(clean, 'e2e.exit'), String(status));
+		const cleanReport = { ...r, numPassedTests: 2, numFailedTests: 0, testResults: passing };
+		writeFileSync(path.join(clean, 'e2e.json'), JSON.stringify(cleanReport));
+		writeFileSync(path.join(clean, 'e2e.exit'), '0');
 		expect(closingLine(countRuns(clean, ['e2e']))).toBe('2 passed, 0 failed');
-	}, 90_000);
+	});
 });
