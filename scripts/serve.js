@@ -1,19 +1,19 @@
 /**
- * Serve the built app (`build/index.js`, adapter-node) from several processes sharing one
- * port through `node:cluster`: WEB_CONCURRENCY processes, by default one per core (at most
- * 4). The app keeps nothing in memory between requests — sessions, sign-in throttles and the
- * per-device sync lock live in MariaDB — so any process may answer any request.
+ * Serve the built app (`lib/app-process.js`: adapter-node's handler behind node's HTTP
+ * server) from several processes sharing one port through `node:cluster`: WEB_CONCURRENCY
+ * processes, by default one per core (at most 4). The app keeps nothing in memory between
+ * requests — sessions, sign-in throttles and the per-device sync lock live in MariaDB — so
+ * any process may answer any request.
  *
  * The app processes get APP_NODE_FLAGS (default `DEFAULT_FLAGS` below). A process that ends
  * unexpectedly is replaced, a little later each time it happens again within a minute, and
  * the server stops with an error when they keep ending within seconds of starting (a broken
- * build). SIGINT/SIGTERM stop every process: adapter-node lets each finish its open requests,
- * and one still running after SHUTDOWN_TIMEOUT (adapter-node's, 30 s) plus 5 s is killed.
+ * build). SIGINT/SIGTERM stop every process: each finishes its open requests, and one still
+ * running after SHUTDOWN_TIMEOUT (30 s) plus 5 s is killed. Without ORIGIN, the app works at
+ * every loopback name and port (`lib/local-origin.js`).
  */
 import cluster from 'node:cluster';
 import os from 'node:os';
-import path from 'node:path';
-import { pathToFileURL } from 'node:url';
 
 /**
  * A fixed young generation of 32 MiB per semi-space, collected on the process's own thread.
@@ -21,7 +21,7 @@ import { pathToFileURL } from 'node:url';
  * (growing from 1 MiB) it was copied and promoted at almost every scavenge, and the
  * background collector threads competed with the requests for the cores. With these flags
  * `npm run bench:sync` measured about 20 % more readings per second and a quarter less CPU
- * in the app (2 cores; README, "Benchmarks"). Costs about 64 MiB of memory per process.
+ * in the app (2 cores; docs/benchmarks.md). Costs about 64 MiB of memory per process.
  */
 const DEFAULT_FLAGS = ['--max-semi-space-size=32', '--min-semi-space-size=32', '--single-threaded-gc'];
 
@@ -31,13 +31,12 @@ const flags =
 	process.env.APP_NODE_FLAGS === undefined
 		? DEFAULT_FLAGS
 		: process.env.APP_NODE_FLAGS.split(/\s+/).filter(Boolean);
-const app = pathToFileURL(path.resolve(import.meta.dirname, '..', 'build', 'index.js')).href;
 
 if (cluster.isWorker) {
-	// After adapter-node's graceful stop, let go of the primary: the IPC channel would keep
-	// this process alive (the app's hook closes the database pool on the same event).
+	// After the graceful stop, let go of the primary: the IPC channel would keep this process
+	// alive (the app's hook closes the database pool on the same event).
 	process.once('sveltekit:shutdown', () => cluster.worker?.disconnect());
-	await import(app);
+	await import('./lib/app-process.js');
 } else {
 	cluster.setupPrimary({ execArgv: [...process.execArgv, ...flags] });
 	let stopping = false;

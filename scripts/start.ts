@@ -1,7 +1,8 @@
 /**
  * `npm start`: MariaDB (installed from Debian's packages when missing) on 127.0.0.1, the
  * migrations, the demo workshop, a build when the sources changed, then the app on
- * 127.0.0.1 with ORIGIN set to the URL printed at the end.
+ * 127.0.0.1 (port 3000 or the next free one). The last line printed is the one address,
+ * "Fieldbench is running at http://localhost:PORT"; http://127.0.0.1:PORT works as well.
  */
 import { buildIfNeeded, freePort, migrate, serve } from './lib/app';
 import { dbEnv, ensureDatabase, startServer } from './lib/mariadb';
@@ -22,11 +23,13 @@ await closeDb();
 console.log(made ? `Demo workshop: ${made} record(s) created.` : 'Demo workshop: present.');
 
 buildIfNeeded();
-const appPort = await freePort(Number(process.env.PORT ?? 3000));
+const wantedPort = Number(process.env.PORT ?? 3000);
+const appPort = await freePort(wantedPort);
+if (appPort !== wantedPort) console.log(`Port ${wantedPort} is taken; the app uses ${appPort}.`);
 const { child, url } = await serve(appPort, dbEnv(dbPort, name));
-console.log(
-	`\nFieldbench is running at ${url}\n(stop with Ctrl+C; stop the database with: npm run db:stop)\n`
-);
+// The address comes once, on the last line; the app processes print nothing.
+console.log('Stop with Ctrl+C; stop the database with: npm run db:stop');
+console.log(`\nFieldbench is running at ${url}`);
 
 for (const sig of ['SIGINT', 'SIGTERM'] as const) {
 	process.on(sig, () => {

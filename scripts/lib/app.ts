@@ -2,9 +2,30 @@
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { existsSync, readdirSync, statSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
-import { freePort, portFree, ROOT } from './mariadb';
+import net from 'node:net';
+import { portFree, ROOT } from './mariadb';
 
-export { freePort };
+/** Whether nothing listens on `port` at [::1] (true when this machine has no IPv6 loopback). */
+function ipv6LoopbackFree(port: number): Promise<boolean> {
+	return new Promise((resolve) => {
+		const srv = net.createServer();
+		srv.once('error', (e: NodeJS.ErrnoException) =>
+			resolve(e.code === 'EADDRNOTAVAIL' || e.code === 'EAFNOSUPPORT')
+		);
+		srv.listen({ port, host: '::1', ipv6Only: true }, () => srv.close(() => resolve(true)));
+	});
+}
+
+/**
+ * The first port from `from` upwards that is free at 127.0.0.1 and at [::1]: the app listens
+ * on 127.0.0.1, and a browser may try [::1] first for "localhost", where another program
+ * could otherwise answer.
+ */
+export async function freePort(from: number): Promise<number> {
+	let port = from;
+	while (!((await portFree(port)) && (await ipv6LoopbackFree(port)))) port++;
+	return port;
+}
 
 /** Apply pending migrations to the database named in the environment. */
 export async function migrate(): Promise<number> {
@@ -50,7 +71,9 @@ export function buildIfNeeded(force = false): boolean {
 
 /**
  * Start the built app (`scripts/serve.js`: WEB_CONCURRENCY processes on one port, one per
- * core by default) in its own process group; resolves once it answers /api/health.
+ * core by default) on 127.0.0.1 in its own process group; resolves once it answers
+ * /api/health. Without ORIGIN in the environment the app answers at every loopback name
+ * (`scripts/lib/local-origin.js`); `url` is the one to print.
  */
 export async function serve(
 	port: number,
@@ -67,7 +90,6 @@ export async function serve(
 			...env,
 			HOST: '127.0.0.1',
 			PORT: String(port),
-			ORIGIN: url,
 			BODY_SIZE_LIMIT: '8M',
 			MIGRATIONS_DIR: path.join(ROOT, 'migrations')
 		}

@@ -1,7 +1,6 @@
 import { redirect } from '@sveltejs/kit';
-import { checkHealth } from '$lib/server/health';
 
-export async function load({ locals }) {
+// The start page is for people; the server's health is at /api/health.
+export function load({ locals }) {
 	if (locals.user) redirect(303, '/field');
-	return { health: await checkHealth() };
 }

@@ -1,6 +1,6 @@
 /**
- * The spec library as CSV (layout in `src/lib/library/csv-layout.ts`, documented in the
- * README). Export writes the workshop's live components and sheets; import makes the
+ * The spec library as CSV (layout in `src/lib/library/csv-layout.ts`, documented in
+ * docs/csv-layout.md). Export writes the workshop's live components and sheets; import makes the
  * library match the file for the components it lists, in ONE transaction:
  *  1. read and validate the whole file (every problem with its line and column);
  *  2. per component: create it, or update the fields that differ;
