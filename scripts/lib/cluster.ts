@@ -396,7 +396,6 @@ export async function startApp(i: number): Promise<void> {
 			WEB_CONCURRENCY: process.env.WEB_CONCURRENCY ?? '1',
 			HOST: '127.0.0.1',
 			PORT: String(port),
-			ORIGIN: `http://localhost:${s.lb}`,
 			ADDRESS_HEADER: 'x-forwarded-for',
 			XFF_DEPTH: '1',
 			BODY_SIZE_LIMIT: '8M',
