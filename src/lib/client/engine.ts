@@ -12,9 +12,9 @@
  * One tab at a time (navigator.locks, when there is one). Never awaits the network inside
  * an IndexedDB transaction.
  */
-import { getMeta, setMeta, type LocalDb, type LocalRecord } from './local-db';
+import { getMeta, setMeta, type LocalDb, type LocalRecord, type OutboxEntry } from './local-db';
 import { countOutbox, peekOutbox } from './outbox';
-import { PUSH_BATCH, type Change, type Op, type PushResult } from '../sync/protocol';
+import { PUSH_BATCH, type Change, type PushResult } from '../sync/protocol';
 
 export type SyncState = 'idle' | 'syncing' | 'offline' | 'signed_out' | 'error';
 export type SyncReport = { state: SyncState; pushed: number; pulled: number; waiting: number; issues: number; error?: string };
@@ -86,7 +86,7 @@ export class SyncEngine {
 				const field = Object.keys(body?.error?.fields ?? {})[0] ?? 'ops.0';
 				const index = Number(field.split('.')[1] ?? 0) || 0;
 				const bad = entries[Math.min(index, entries.length - 1)];
-				await this.settleEntry(bad.seq!, { opId: bad.op.opId, status: 'rejected', reason: 'invalid', message: body?.error?.message }, bad.op);
+				await this.settleEntry(bad, { opId: bad.op.opId, status: 'rejected', reason: 'invalid', message: body?.error?.message });
 				continue;
 			}
 			if (!r.ok) throw new Transient(`Server answered ${r.status}`);
@@ -94,14 +94,15 @@ export class SyncEngine {
 			for (let i = 0; i < results.length; i++) {
 				const result = results[i];
 				if (result.status === 'rejected' && result.reason === 'server_error') throw new Transient('The server could not store an op');
-				await this.settleEntry(entries[i].seq!, result, entries[i].op);
+				await this.settleEntry(entries[i], result);
 				sent++;
 			}
 		}
 	}
 
 	/** Remove one answered entry and update its record, in one transaction. */
-	private async settleEntry(seq: number, result: PushResult, op: Op) {
+	private async settleEntry(entry: OutboxEntry, result: PushResult) {
+		const { op, before } = entry;
 		const tx = this.db.transaction(['outbox', 'records', 'issues'], 'readwrite');
 		const records = tx.objectStore('records');
 		const rec = await records.get([op.entity, op.entityId]);
@@ -113,9 +114,9 @@ export class SyncEngine {
 		}
 		if (status === 'rejected' || status === 'conflict') {
 			const kind = status === 'rejected' ? 'rejected' : 'conflict';
-			await tx.objectStore('issues').put({ opId: op.opId, op, result, kind, at: new Date().toISOString(), seen: false });
+			await tx.objectStore('issues').put({ opId: op.opId, op, result, kind, at: new Date().toISOString(), seen: false, ...(before ? { before } : {}) });
 		}
-		await tx.objectStore('outbox').delete(seq);
+		await tx.objectStore('outbox').delete(entry.seq!);
 		await tx.done;
 	}
 

@@ -24,8 +24,9 @@ export type LocalRecord = {
 	pending: number;
 	updatedAt: string;
 };
-export type OutboxEntry = { seq?: number; op: Op; jobId: string | null; createdAt: string };
-export type Issue = { opId: string; op: Op; result: PushResult; kind: 'rejected' | 'conflict'; at: string; seen: boolean };
+/** `before`: for a patch, the values its fields had on this phone before it (to undo a refusal). */
+export type OutboxEntry = { seq?: number; op: Op; jobId: string | null; createdAt: string; before?: Record<string, unknown> };
+export type Issue = { opId: string; op: Op; result: PushResult; kind: 'rejected' | 'conflict'; at: string; seen: boolean; before?: Record<string, unknown> };
 
 export interface FieldbenchDB extends DBSchema {
 	records: { key: [string, string]; value: LocalRecord; indexes: { 'by-entity': string; 'by-job': string } };

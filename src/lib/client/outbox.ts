@@ -45,6 +45,8 @@ export async function writeLocal(db: LocalDb, w: LocalWrite, now = new Date()): 
 		deviceTime: now.toISOString()
 	};
 	const entry: OutboxEntry = { op, jobId: record.jobId, createdAt: now.toISOString() };
+	if (w.kind === 'patch')
+		entry.before = Object.fromEntries(Object.keys(fields).map((k) => [k, existing?.data[k] ?? null]));
 	await Promise.all([records.put(record), tx.objectStore('outbox').add(entry), tx.done]);
 	return record;
 }

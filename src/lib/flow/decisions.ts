@@ -7,6 +7,7 @@
 import { findOutliers } from '../domain/compare';
 import { canResolve, type MeterRange } from '../domain/meter';
 import { suspectUnit, type SpecBand, type Verdict } from '../domain/spec';
+import { refuseHybridWork } from '../rules';
 
 /** The product's words for a result (DESIGN §7), with a shape so colour is never alone. */
 export const RESULT_WORDS: Record<Verdict | 'open' | 'depends' | 'no_spec', { word: string; shape: string; tone: 'ok' | 'bad' | 'warn' }> = {
@@ -31,15 +32,15 @@ export type StartContext = {
 	cautions: readonly string[];
 };
 
-/** Why a test may not start, or null. Airbag parts are never ohm-tested; no apprentice HV work. */
+/**
+ * Why a test may not start, or null. Airbag parts are never ohm-tested; no apprentice HV
+ * work (the shared rule `refuseHybridWork`, which the server applies to every test kind).
+ */
 export function refuseTest(c: StartContext): string | null {
 	if (c.cautions.includes('airbag')) {
 		return 'Airbag components are never tested with an ohmmeter: the meter’s current can fire the igniter. Follow the maker’s procedure and its diagnostic tool.';
 	}
-	if (c.hybrid && c.role === 'apprentice') {
-		return 'Apprentices do not work on hybrid or electric vehicles. Ask a qualified technician to take this test.';
-	}
-	return null;
+	return refuseHybridWork(c, c.hybrid);
 }
 
 export type Step = 'measure' | 'spark' | 'running' | 'battery';

@@ -21,6 +21,14 @@ export type JobView = {
 	vehicle: { id: string; make: string; model: string; year: number | null; plate: string | null; vin: string | null; hybrid: boolean; engineCode: string | null } | null;
 };
 
+/**
+ * How a job is named on the phone. A job made on this phone has no number until the server
+ * gives it one (numbers are the server's, whatever the channel); the next pull brings it.
+ */
+export function jobTitle(number: number | null): string {
+	return number == null ? 'Job · number pending' : `Job ${number}`;
+}
+
 async function view(db: LocalDb, r: LocalRecord): Promise<JobView> {
 	const d = r.data;
 	const c = d.customerId ? await getRecord(db, 'customer', d.customerId as string) : undefined;

@@ -46,8 +46,8 @@ export const faultCode = z.object({
 	text: z.string().trim().max(200, 'At most 200 characters').default('')
 });
 
+/** A new job's fields. Its number is the server's (never taken from a client). */
 export const jobCreate = z.object({
-	number: z.number().int().positive().optional(),
 	customerId: uuidRef.nullable().optional(),
 	vehicleId: uuidRef.nullable().optional(),
 	complaint: requiredText(2000, 'Describe the complaint'),

@@ -39,9 +39,33 @@ export class NotFoundError extends AppError {
 	}
 }
 
+/**
+ * A refusal of the rulebook: 403 with the reason in the product's words. Sync answers every
+ * one of them `rejected: forbidden` with the same words.
+ */
 export class ForbiddenError extends AppError {
-	constructor(message = 'Your role does not allow this') {
-		super(403, 'forbidden', message);
+	constructor(
+		message = 'Your role does not allow this',
+		status = 403,
+		code = 'forbidden',
+		extra: Record<string, unknown> = {}
+	) {
+		super(status, code, message, extra);
+	}
+}
+
+/**
+ * An approved spec sheet never changes (a refusal of the rulebook): 409 `sheet_approved`
+ * carrying the approved record, so the client can start the next draft from it.
+ */
+export class SheetApprovedError extends ForbiddenError {
+	constructor(current: { sheetVersion?: unknown }) {
+		super(
+			`Version ${current.sheetVersion} is approved and never changes; start the next draft`,
+			409,
+			'sheet_approved',
+			{ current }
+		);
 	}
 }
 

@@ -205,7 +205,10 @@ export async function seedDemo(): Promise<number> {
 		...VEHICLES.map(
 			({ id, ...v }) => [Vehicle, id, () => vehicles.create(lead, v, { id })] as Step
 		),
-		...JOBS.map(({ id, ...j }) => [Job, id, () => jobs.create(lead, j, { id })] as Step),
+		...JOBS.map(
+			({ id, number, ...j }) =>
+				[Job, id, () => jobs.create(lead, j, { id, serverFields: { number } })] as Step
+		),
 		[
 			Component,
 			COIL.id,

@@ -15,11 +15,12 @@ import {
 	sheetPatch,
 	type ComponentRecord
 } from '../../schemas/component';
-import { isLead, type Actor } from '../auth/types';
+import type { Actor } from '../auth/types';
 import { db } from '../db';
 import { Component, SpecSheet, User } from '../db/models';
-import { ForbiddenError, NotFoundError, StaleVersionError, ValidationError } from '../errors';
+import { NotFoundError, ValidationError } from '../errors';
 import { inOrder, likeOf, orderBy, pageOfIds, Where } from './list-sql';
+import { componentRules, sheetRules } from './rules';
 import { defineAggregate, inTransaction } from './write-path';
 
 const COMPONENT_FIELDS = [
@@ -45,6 +46,7 @@ export const components = defineAggregate({
 	model: Component,
 	createSchema: componentCreate,
 	patchSchema: componentPatch,
+	rules: componentRules,
 	toRecord: (r) => ({
 		id: r.id,
 		version: r.version,
@@ -75,12 +77,17 @@ const sheetRecord = (r: StoredRow) => ({
 	deleted: r.deletedAt != null
 });
 
+/** Fields of a sheet only the server sets: its version number, its state and the approval. */
+const SHEET_SERVER_OWNED = ['sheetVersion', 'state', 'approvedBy', 'approvedAt'] as const;
+
 /** A new sheet is a draft with the component's next version number (server-assigned). */
 export const sheets = defineAggregate({
 	entity: 'sheet',
 	model: SpecSheet,
 	createSchema: sheetCreate,
 	patchSchema: sheetPatch,
+	rules: sheetRules,
+	serverOwned: SHEET_SERVER_OWNED,
 	prepareCreate: async (actor, fields, t) => {
 		await assertComponent(actor, fields.componentId, t);
 		const [row] = await db().query<{ n: number | null }>(
@@ -111,6 +118,7 @@ export const importedSheets = defineAggregate({
 		approvedAt: z.date().nullable()
 	}),
 	patchSchema: sheetPatch,
+	rules: sheetRules,
 	prepareCreate: async (actor, fields, t) => {
 		await assertComponent(actor, fields.componentId, t);
 		return fields;
@@ -119,47 +127,25 @@ export const importedSheets = defineAggregate({
 });
 
 
-/** 400 naming `partNumber` when another component of the workshop has it (any letter case). */
-async function assertPartNumberFree(
-	actor: Actor,
-	partNumber: string,
-	id: string | null,
-	t: Transaction
-) {
-	const other = await Component.findOne({
-		where: { workshopId: actor.workshopId, partNumber },
-		transaction: t
-	});
-	if (other && other.id !== id)
-		throw new ValidationError({
-			partNumber: other.deletedAt
-				? `A removed component had ${other.partNumber}; use another part number`
-				: `${other.partNumber} is already in the library`
-		});
-}
-
 function parseOr400<S extends z.ZodType>(schema: S, input: unknown): z.output<S> {
 	const r = schema.safeParse(input);
 	if (!r.success) throw ValidationError.fromZod(r.error);
 	return r.data;
 }
 
-/** Add a component (anyone in the workshop). */
+/** Add a component (anyone in the workshop; a part number once per workshop). */
 export async function createComponent(
 	actor: Actor,
 	input: unknown,
 	o: { transaction?: Transaction; id?: string } = {}
 ) {
-	const fields = parseOr400(componentCreate, input);
-	return inTransaction(o.transaction, async (t) => {
-		await assertPartNumberFree(actor, fields.partNumber, null, t);
-		return components.create(actor, input, { transaction: t, id: o.id });
-	});
+	return components.create(actor, input, { transaction: o.transaction, id: o.id });
 }
 
 /**
- * Change a component seen at `baseVersion`: 404 across workshops, 409 when stale, 400 for a
- * part number in use, 403 when someone other than a lead or owner removes a caution.
+ * Change a component seen at `baseVersion`: 404 across workshops, 403 when someone other
+ * than a lead or owner removes a caution (`componentRules`), 400 for a part number in use,
+ * 409 when stale.
  */
 export async function updateComponent(
 	actor: Actor,
@@ -168,25 +154,7 @@ export async function updateComponent(
 	input: unknown,
 	o: { transaction?: Transaction } = {}
 ) {
-	const fields = parseOr400(componentPatch, input);
-	return inTransaction(o.transaction, async (t) => {
-		const row = await Component.findOne({
-			where: { id, workshopId: actor.workshopId, deletedAt: null },
-			transaction: t,
-			lock: t.LOCK.UPDATE
-		});
-		if (!row) throw new NotFoundError('Component');
-		if (row.version !== baseVersion) throw new StaleVersionError(components.toRecord(row as never));
-		const before = (row.cautions as string[] | null) ?? [];
-		if (
-			fields.cautions &&
-			!isLead(actor) &&
-			before.some((c) => !fields.cautions!.includes(c as never))
-		)
-			throw new ForbiddenError('Only a workshop lead or owner removes a caution');
-		if (fields.partNumber) await assertPartNumberFree(actor, fields.partNumber, id, t);
-		return components.update(actor, id, baseVersion, input, { transaction: t });
-	});
+	return components.update(actor, id, baseVersion, input, { transaction: o.transaction });
 }
 
 export type SheetSummary = {

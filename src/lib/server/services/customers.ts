@@ -10,10 +10,11 @@ import {
 import type { ListPage } from '../../schemas/common';
 import { db } from '../db';
 import { Customer } from '../db/models';
+import { customerRecord } from '../db/records';
 import type { Actor } from '../auth/types';
 import { ValidationError } from '../errors';
-import { assertMayAddParty, assertMayEditParty } from './access';
 import { attachToJob, jobForAttach } from './jobs';
+import { customerRules } from './rules';
 import { inOrder, likeOf, orderBy, pageOfIds, Where } from './list-sql';
 import { defineAggregate, inTransaction } from './write-path';
 
@@ -22,19 +23,11 @@ const aggregate = defineAggregate({
 	model: Customer,
 	createSchema: customerCreate,
 	patchSchema: customerPatch,
-	toRecord: (r) => ({
-		id: r.id,
-		version: r.version,
-		name: r.get('name'),
-		phone: r.get('phone') ?? null,
-		email: r.get('email') ?? null,
-		reportConsent: Boolean(r.get('reportConsent')),
-		deleted: r.deletedAt != null,
-		updatedAt: r.get('updatedAt')
-	})
+	rules: customerRules,
+	toRecord: customerRecord
 });
 
-export const { create, update, remove, read, toRecord, def, entity } = aggregate;
+export const { create, update, remove, read, toRecord, def, entity, check, clientInput } = aggregate;
 /** A customer as the API and the change feed send it. */
 export type CustomerRecord = {
 	id: string;
@@ -126,12 +119,11 @@ const jobRef = z.uuid().nullable().optional();
  * (apprentices must name one of their own jobs: 403 otherwise).
  */
 export async function addCustomer(actor: Actor, input: unknown, o: { jobId?: unknown } = {}) {
-	assertMayAddParty(actor, 'customer', o.jobId);
-	const ref = jobRef.safeParse(o.jobId);
+	const ref = jobRef.safeParse(o.jobId || null);
 	if (!ref.success) throw new ValidationError({ jobId: 'Not a valid job id' });
 	return inTransaction(undefined, async (t) => {
 		const job = ref.data ? await jobForAttach(actor, ref.data, t) : null;
-		const rec = await create(actor, input, { transaction: t });
+		const rec = await create(actor, input, { transaction: t, via: { jobId: job?.id } });
 		if (job) await attachToJob(actor, job, { customerId: rec.id as string }, t);
 		return rec;
 	});
@@ -139,7 +131,5 @@ export async function addCustomer(actor: Actor, input: unknown, o: { jobId?: unk
 
 /** Change a customer the actor saw at `baseVersion` (apprentices: only on their own jobs). */
 export async function editCustomer(actor: Actor, id: string, baseVersion: number, input: unknown) {
-	await read(actor, id); // 404 first
-	await assertMayEditParty(actor, 'customer', id);
 	return update(actor, id, baseVersion, input);
 }

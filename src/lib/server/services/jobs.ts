@@ -1,16 +1,18 @@
 /**
- * Jobs on the one write path, with the role checks (access.ts), the server-side list, the
- * status history (read from the audit rows of the `status` field) and the fault codes.
+ * Jobs on the one write path, with the rulebook's job rules (`jobRules` in `rules.ts`), the
+ * server-side list, the status history (read from the audit rows of the `status` field) and
+ * the fault codes. The job number is the server's: the next one of the workshop, whatever
+ * the channel; a phone learns it through pull.
  */
 import { Op, QueryTypes, type Transaction } from 'sequelize';
 import {
 	CODE_LISTS,
 	faultCode,
 	JOB_STATUSES,
-	jobCreate,
 	jobListQuery,
-	jobPatch,
 	jobStatusChange,
+	jobCreate,
+	jobPatch,
 	type CodeList,
 	type JobListQuery,
 	type JobStatus
@@ -18,51 +20,49 @@ import {
 import type { ListPage } from '../../schemas/common';
 import { db } from '../db';
 import { AuditEntry, Customer, Job, User, Vehicle, type FaultCode } from '../db/models';
+import { jobRecord } from '../db/records';
 import type { Actor } from '../auth/types';
 import { NotFoundError, StaleVersionError, ValidationError } from '../errors';
-import {
-	ASSIGNABLE_ROLES,
-	assertAssignee,
-	assertStatusChange,
-	loadJobForWrite,
-	mayOpenJob
-} from './access';
 import { isLead } from '../../roles';
+import { feedReassignedJob } from './job-feed';
 import { inOrder, likeOf, orderBy, pageOfIds, Where } from './list-sql';
+import { ASSIGNABLE_ROLES, jobRules, seesJob } from './rules';
 import { defineAggregate } from './write-path';
-
-const FIELDS = [
-	'number',
-	'customerId',
-	'vehicleId',
-	'complaint',
-	'location',
-	'assigneeId',
-	'status',
-	'codesBefore',
-	'codesAfter',
-	'notes'
-] as const;
 
 export const jobs = defineAggregate({
 	entity: 'job',
 	model: Job,
 	createSchema: jobCreate,
 	patchSchema: jobPatch,
+	rules: jobRules,
+	serverOwned: ['number'],
+	/**
+	 * The server's part of a new job: its number (the next of the workshop, unless the server
+	 * itself gave one), the one who opened it as assignee when a technician or apprentice
+	 * named no one, and the vehicle's owner as customer when none is given.
+	 */
 	prepareCreate: async (actor, fields, t) => {
-		if (fields.number) return fields;
+		const out = { ...fields };
+		if (!isLead(actor) && !('assigneeId' in out)) out.assigneeId = actor.userId;
+		if (out.vehicleId && !out.customerId) {
+			const v = await Vehicle.findOne({
+				where: { id: out.vehicleId, workshopId: actor.workshopId },
+				transaction: t
+			});
+			out.customerId = v?.customerId ?? null;
+		}
+		if (out.number) return out;
 		const [row] = await db().query<{ n: number | null }>(
 			'SELECT MAX(number) AS n FROM jobs WHERE workshop_id = ? FOR UPDATE',
 			{ replacements: [actor.workshopId], transaction: t, type: QueryTypes.SELECT }
 		);
-		return { ...fields, number: Number(row?.n ?? 1000) + 1 };
+		return { ...out, number: Number(row?.n ?? 1000) + 1 };
 	},
 	jobIdOf: (r) => r.id,
 	afterWrite: async (actor, row, action, changed, t) => {
 		const moved = changed.find((c) => c.field === 'assigneeId');
 		if (action !== 'update' || !moved || moved.old === moved.new) return;
-		const { onJobReassigned } = await import('../sync/scope');
-		await onJobReassigned(
+		await feedReassignedJob(
 			actor,
 			row.id,
 			(moved.old as string | null) ?? null,
@@ -70,14 +70,7 @@ export const jobs = defineAggregate({
 			t
 		);
 	},
-	toRecord: (r) => ({
-		id: r.id,
-		version: r.version,
-		...Object.fromEntries(FIELDS.map((f) => [f, r.get(f) ?? null])),
-		deleted: r.deletedAt != null,
-		createdAt: r.get('createdAt'),
-		updatedAt: r.get('updatedAt')
-	})
+	toRecord: jobRecord
 });
 
 /** A job as the API and the change feed send it. */
@@ -98,7 +91,6 @@ export type JobRecord = {
 	createdAt: Date;
 	updatedAt: Date;
 };
-type Refs = { customerId?: string | null; vehicleId?: string | null };
 
 function parse<T>(schema: { safeParse: (v: unknown) => { success: boolean } }, input: unknown): T {
 	const r = schema.safeParse(input) as
@@ -107,57 +99,18 @@ function parse<T>(schema: { safeParse: (v: unknown) => { success: boolean } }, i
 	return r.data;
 }
 
-/** The input as a plain object without the fields the server owns (the job number). */
-function ownFields(input: unknown): Record<string, unknown> {
-	if (!input || typeof input !== 'object' || Array.isArray(input)) return {};
-	const { number: _n, ...rest } = input as Record<string, unknown>;
-	return rest;
-}
-
-/** 400 when a customer or vehicle named on a job is not a live record of the workshop. */
-async function assertRefs(actor: Actor, f: { customerId?: unknown; vehicleId?: unknown }) {
-	const where = (id: unknown) => ({
-		where: { id: id as string, workshopId: actor.workshopId, deletedAt: { [Op.is]: null } }
-	});
-	const fields: Record<string, string> = {};
-	if (f.customerId && !(await Customer.count(where(f.customerId))))
-		fields.customerId = 'No such customer in this workshop';
-	if (f.vehicleId && !(await Vehicle.count(where(f.vehicleId))))
-		fields.vehicleId = 'No such vehicle in this workshop';
-	if (Object.keys(fields).length) throw new ValidationError(fields);
-}
-
-async function ownerOf(actor: Actor, vehicleId: string): Promise<string | null> {
-	const v = await Vehicle.findOne({ where: { id: vehicleId, workshopId: actor.workshopId } });
-	return v?.customerId ?? null;
-}
-
 /**
  * Open a job. Technicians and apprentices open jobs assigned to themselves; leads and
  * owners may assign any technician or apprentice (or no one). The number comes from the
  * server; without a customer, the vehicle's owner is the job's customer.
  */
 export async function addJob(actor: Actor, input: unknown) {
-	const fields = ownFields(input);
-	if (!isLead(actor) && !('assigneeId' in fields)) fields.assigneeId = actor.userId;
-	const parsed = parse<Refs & { assigneeId?: string | null; status: JobStatus }>(jobCreate, fields);
-	await assertAssignee(actor, parsed.assigneeId ?? null);
-	assertStatusChange(actor, 'open', parsed.status);
-	await assertRefs(actor, parsed);
-	if (parsed.vehicleId && !parsed.customerId)
-		fields.customerId = await ownerOf(actor, parsed.vehicleId);
-	return jobs.create(actor, fields);
+	return jobs.create(actor, input);
 }
 
 /** Change a job the actor saw at `baseVersion`: 404 → 403 → 400 → 409. */
 export async function editJob(actor: Actor, id: string, baseVersion: number, input: unknown) {
-	const job = await loadJobForWrite(actor, id);
-	const fields = ownFields(input);
-	const patch = parse<Refs & { assigneeId?: string | null; status?: JobStatus }>(jobPatch, fields);
-	if ('assigneeId' in patch) await assertAssignee(actor, patch.assigneeId ?? null, job.assigneeId);
-	if (patch.status) assertStatusChange(actor, job.status, patch.status);
-	await assertRefs(actor, patch);
-	return jobs.update(actor, id, baseVersion, fields);
+	return jobs.update(actor, id, baseVersion, input);
 }
 
 /** `{ status, baseVersion }`: move the job to another status (recorded with who and when). */
@@ -181,7 +134,10 @@ async function changeCodes(
 ) {
 	const field = CODE_LISTS[list];
 	for (let attempt = 0; ; attempt++) {
-		const job = await loadJobForWrite(actor, id);
+		const job = await Job.findOne({
+			where: { id, workshopId: actor.workshopId, deletedAt: { [Op.is]: null } }
+		});
+		if (!job) throw new NotFoundError('Job');
 		const codes = (job.get(field) as FaultCode[] | null) ?? [];
 		try {
 			return await jobs.update(actor, id, job.version, { [field]: change(codes) });
@@ -215,14 +171,19 @@ export async function removeFaultCode(
 	});
 }
 
-/** A job of the actor's, for attaching a new customer or vehicle (400 naming `jobId` when not found). */
+/**
+ * The job a new customer or vehicle is added for, locked (400 naming `jobId` when it is not
+ * a live job of the workshop); the rules of the write that follows decide whether the actor
+ * may put it there.
+ */
 export async function jobForAttach(actor: Actor, jobId: string, t: Transaction) {
-	try {
-		return await loadJobForWrite(actor, jobId, t);
-	} catch (e) {
-		if (e instanceof NotFoundError) throw new ValidationError({ jobId: 'No such job' });
-		throw e;
-	}
+	const job = await Job.findOne({
+		where: { id: jobId, workshopId: actor.workshopId, deletedAt: { [Op.is]: null } },
+		transaction: t,
+		lock: t.LOCK.UPDATE
+	});
+	if (!job) throw new ValidationError({ jobId: 'No such job' });
+	return job;
 }
 
 /** Put a customer or vehicle on a locked job, inside the caller's transaction. */
@@ -243,7 +204,7 @@ export async function listOpen(actor: Actor) {
 /** One job with its customer, vehicle and assignee; 404 for another workshop or an unassigned job. */
 export async function readOne(actor: Actor, id: string) {
 	const job = (await jobs.read(actor, id)) as unknown as JobRecord;
-	if (!mayOpenJob(actor, job)) throw new NotFoundError('Job');
+	if (!seesJob(actor, job)) throw new NotFoundError('Job');
 	const [full] = await withParties(actor, [job]);
 	return full;
 }

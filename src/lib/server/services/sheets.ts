@@ -1,7 +1,8 @@
 /**
  * Spec sheets: drafts by anyone, approval by a lead or owner, and an approved version that
  * never changes (DESIGN §2.2, §6). Every write goes through the `sheets` aggregate in
- * `components.ts` (the one write path); this module adds the rules around it:
+ * `components.ts` (the one write path), whose rules (`sheetRules` in `rules.ts`) hold for
+ * every channel; this module adds the use cases around it:
  *
  * - a draft is edited at the version its editor saw (409 with the current record otherwise);
  * - an approved sheet refuses every edit and removal (409 `sheet_approved`): the client
@@ -14,25 +15,15 @@ import { Op, type Transaction } from 'sequelize';
 import { z } from 'zod';
 import { pageParam, pageSizeParam, sortParam, type ListPage } from '../../schemas/common';
 import type { ComponentRecord, SheetRecord } from '../../schemas/component';
-import { isLead, type Actor } from '../auth/types';
+import type { Actor } from '../auth/types';
 import { SpecSheet } from '../db/models';
-import { AppError, ForbiddenError, NotFoundError, ValidationError } from '../errors';
+import { AppError, NotFoundError, SheetApprovedError, ValidationError } from '../errors';
 import { components, sheets } from './components';
 import { inTransaction } from './write-path';
 
-const record = (row: SpecSheet) => sheets.toRecord(row as never) as SheetRecord;
+export { SheetApprovedError };
 
-/** 409: an approved version never changes; carries it so the client can start the next draft. */
-export class SheetApprovedError extends AppError {
-	constructor(current: SheetRecord) {
-		super(
-			409,
-			'sheet_approved',
-			`Version ${current.sheetVersion} is approved and never changes; start the next draft`,
-			{ current }
-		);
-	}
-}
+const record = (row: SpecSheet) => sheets.toRecord(row as never) as SheetRecord;
 
 /** The live sheet `id` of the actor's workshop, locked for the transaction (404 otherwise). */
 async function lockSheet(actor: Actor, id: string, t: Transaction) {
@@ -57,13 +48,9 @@ export async function createDraft(actor: Actor, input: unknown) {
 	return (await sheets.create(actor, input)) as SheetRecord;
 }
 
-/** Change a draft seen at `baseVersion` (anyone): 409 when approved or stale. */
+/** Change a draft seen at `baseVersion` (anyone): 409 when approved (`sheetRules`) or stale. */
 export async function updateDraft(actor: Actor, id: string, baseVersion: number, input: unknown) {
-	return inTransaction(undefined, async (t) => {
-		const row = await lockSheet(actor, id, t);
-		if (row.state === 'approved') throw new SheetApprovedError(record(row));
-		return (await sheets.update(actor, id, baseVersion, input, { transaction: t })) as SheetRecord;
-	});
+	return (await sheets.update(actor, id, baseVersion, input)) as SheetRecord;
 }
 
 /**
@@ -71,10 +58,8 @@ export async function updateDraft(actor: Actor, id: string, baseVersion: number,
  * it changed since, when it is already approved, or when a newer version is approved.
  */
 export async function approveSheet(actor: Actor, id: string, baseVersion: number) {
-	if (!isLead(actor)) throw new ForbiddenError('Only a workshop lead or owner approves a sheet');
 	return inTransaction(undefined, async (t) => {
 		const row = await lockSheet(actor, id, t);
-		if (row.state === 'approved') throw new SheetApprovedError(record(row));
 		const newer = await SpecSheet.findOne({
 			where: {
 				workshopId: actor.workshopId,
@@ -115,14 +100,11 @@ export async function startNextDraft(actor: Actor, id: string) {
 	});
 }
 
-/** Discard a draft seen at `baseVersion` (a tombstone): its author, a lead or an owner. */
+/** Discard a draft seen at `baseVersion` (a tombstone): its author, a lead or an owner (`sheetRules`). */
 export async function discardDraft(actor: Actor, id: string, baseVersion: number) {
 	return inTransaction(undefined, async (t) => {
-		const row = await lockSheet(actor, id, t);
-		if (row.state === 'approved') throw new SheetApprovedError(record(row));
-		if (!isLead(actor) && row.get('createdBy') !== actor.userId)
-			throw new ForbiddenError('Only its author or a workshop lead discards a draft');
-		return (await sheets.remove(actor, id, baseVersion, { transaction: t })) as SheetRecord;
+		const row = await lockSheet(actor, id, t); // a discarded draft is not found again
+		return (await sheets.remove(actor, row.id, baseVersion, { transaction: t })) as SheetRecord;
 	});
 }
 

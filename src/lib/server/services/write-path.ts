@@ -1,13 +1,21 @@
 /**
  * The one write path (DESIGN §3). Every aggregate's service is built with `defineAggregate`,
  * and every write — form action, JSON route or sync op — goes through it. In ONE transaction:
- *  1. validate the input with the aggregate's zod schema (400 naming the field);
+ *  1. validate the input with the aggregate's zod schema (400 naming the field); fields the
+ *     server owns are never taken from the input (`serverOwned`, and the schemas leave them
+ *     out): only the server's own callers set them, through `serverFields`;
  *  2. read the row FOR UPDATE, scoped to the actor's workshop (404 otherwise);
- *  3. check the version the caller saw (409 with the current record when stale);
- *  4. write the row with `version + 1` and the per-field versions;
- *  5. write one audit row per changed field;
- *  6. append the change row with the next per-workshop `seq`.
+ *  3. the aggregate's rules (`authorize`: who may, 403 or 404; `checkFields`: what the
+ *     fields refer to, 400) — the one rulebook, `rules.ts`, which the sync path calls too;
+ *  4. check the version the caller saw (409 with the current record when stale);
+ *  5. write the row with `version + 1` and the per-field versions;
+ *  6. write one audit row per changed field;
+ *  7. append the change row with the next per-workshop `seq`.
  * A failure anywhere rolls back all of it.
+ *
+ * The one sanctioned exception is the append-only path of sync (`server/sync/append.ts`:
+ * readings, spark and swap tests, sign-offs), which writes hundreds of rows per push in bulk;
+ * it calls the rulebook's `refuseAppend` for every record instead.
  */
 import { Op, type Model, type ModelStatic, type Transaction } from 'sequelize';
 import { v7 as uuidv7 } from 'uuid';
@@ -22,6 +30,33 @@ export type WriteOptions = {
 	opId?: string | null;
 	/** Fields set by the server itself (e.g. approval), applied after the input is validated. */
 	serverFields?: Record<string, unknown>;
+	/** What the calling service vouches for, for the rules (e.g. the job a customer is added for). */
+	via?: RuleContext['via'];
+};
+
+/** The three kinds of write every channel offers. */
+export type WriteKind = 'create' | 'update' | 'delete';
+
+/** What an aggregate's rules see of one write. */
+export type RuleContext = {
+	actor: Actor;
+	kind: WriteKind;
+	/** The stored row as plain values (null for a create). */
+	row: Record<string, unknown> | null;
+	/** create: every field; update: the fields whose value changes; delete: none. */
+	changed: Record<string, unknown>;
+	/** The stored record as the API sends it (for an answer that carries it). */
+	current: () => Record<string, unknown>;
+	t: Transaction;
+	via?: { jobId?: string | null };
+};
+
+/** An aggregate's rules: each throws to refuse, and every channel runs them. */
+export type Rules = {
+	/** Who may make this write: 403 (ForbiddenError) or 404 when the record is not theirs to see. */
+	authorize?: (c: RuleContext) => void | Promise<void>;
+	/** What the fields name must exist and fit (a customer of the workshop, an approved sheet): 400. */
+	checkFields?: (c: RuleContext) => void | Promise<void>;
 };
 type Row = Model & {
 	id: string;
@@ -55,6 +90,10 @@ export type AggregateDef<C extends z.ZodType, P extends z.ZodType> = {
 	) => Promise<void>;
 	/** The job a record belongs to, for pull scoping (null: workshop-wide). */
 	jobIdOf?: (row: Row) => string | null;
+	/** The aggregate's rules (`rules.ts`). */
+	rules?: Rules;
+	/** Fields only the server sets (job number, technician, approval…): dropped from any input. */
+	serverOwned?: readonly string[];
 };
 
 /**
@@ -110,11 +149,48 @@ export function parsePatch<S extends z.ZodType>(
 }
 
 const json = (v: unknown) => (v === undefined ? null : JSON.stringify(v));
-const same = (a: unknown, b: unknown) =>
-	a instanceof Date || b instanceof Date ? json(a) === json(b) : json(a) === json(b);
+const same = (a: unknown, b: unknown) => json(a) === json(b);
+
+/** The fields whose value differs from the stored row's: what a write really changes. */
+export function changedFields(row: { get: (k: string) => unknown }, fields: Record<string, unknown>) {
+	return Object.fromEntries(Object.entries(fields).filter(([k, v]) => !same(row.get(k), v)));
+}
+
+/** The input without the fields the server owns (they never come from a client). */
+function clientInput(input: unknown, owned: readonly string[] | undefined): unknown {
+	if (!owned?.length || !input || typeof input !== 'object' || Array.isArray(input)) return input;
+	const out = { ...(input as Record<string, unknown>) };
+	for (const k of owned) delete out[k];
+	return out;
+}
+
+/** The stored row as plain values, for the rules. */
+const plainOf = (row: Row) => row.get({ plain: true }) as Record<string, unknown>;
 
 export function defineAggregate<C extends z.ZodType, P extends z.ZodType>(def: AggregateDef<C, P>) {
 	const Model = def.model as unknown as ModelStatic<Row>;
+
+	/** The aggregate's rules for one write: authorize (403/404), then the fields (400). */
+	async function check(c: RuleContext) {
+		await def.rules?.authorize?.(c);
+		await def.rules?.checkFields?.(c);
+	}
+	const ctx = (
+		actor: Actor,
+		kind: WriteKind,
+		row: Row | null,
+		changed: Record<string, unknown>,
+		t: Transaction,
+		via?: RuleContext['via']
+	): RuleContext => ({
+		actor,
+		kind,
+		row: row && plainOf(row),
+		changed,
+		current: () => (row ? def.toRecord(row) : {}),
+		t,
+		via
+	});
 
 	async function lockRow(actor: Actor, id: string, t: Transaction): Promise<Row> {
 		const row = await Model.findOne({
@@ -134,6 +210,19 @@ export function defineAggregate<C extends z.ZodType, P extends z.ZodType>(def: A
 		toRecord: def.toRecord,
 		/** The definition, for the sync service (which merges ops on the same rows). */
 		def,
+		/** Drop the fields the server owns from a client's input. */
+		clientInput: (input: unknown) => clientInput(input, def.serverOwned),
+		/**
+		 * The rules for a write decided elsewhere (the sync merge): `row` is the stored row or
+		 * null, `changed` the fields the write sets. Throws as `create`/`update`/`remove` would.
+		 */
+		check: (
+			actor: Actor,
+			kind: WriteKind,
+			row: Row | null,
+			changed: Record<string, unknown>,
+			t: Transaction
+		) => check(ctx(actor, kind, row, changed, t)),
 
 		/** Read one live record of the actor's workshop (404 otherwise). */
 		async read(actor: Actor, id: string, t?: Transaction) {
@@ -147,7 +236,10 @@ export function defineAggregate<C extends z.ZodType, P extends z.ZodType>(def: A
 
 		/** Create (version 1). An existing id with the same fields is returned as is. */
 		async create(actor: Actor, input: unknown, o: WriteOptions & { id?: string } = {}) {
-			const fields = parse(def.createSchema, input) as Record<string, unknown>;
+			const fields = {
+				...(parse(def.createSchema, clientInput(input, def.serverOwned)) as Record<string, unknown>),
+				...o.serverFields
+			};
 			return inTransaction(o.transaction, async (t) => {
 				const id = o.id ?? uuidv7();
 				const existing = await Model.findOne({ where: { id }, transaction: t });
@@ -158,6 +250,7 @@ export function defineAggregate<C extends z.ZodType, P extends z.ZodType>(def: A
 					if (!sameFields) throw new IdConflictError();
 					return def.toRecord(existing);
 				}
+				await check(ctx(actor, 'create', null, fields, t, o.via));
 				if (def.prepareCreate) Object.assign(fields, await def.prepareCreate(actor, fields, t));
 				const fv = Object.fromEntries(Object.keys(fields).map((k) => [k, 1]));
 				const row = await Model.create(
@@ -189,15 +282,19 @@ export function defineAggregate<C extends z.ZodType, P extends z.ZodType>(def: A
 			input: unknown,
 			o: WriteOptions = {}
 		) {
-			const fields = {
-				...(parse(def.patchSchema, input) as Record<string, unknown>),
-				...o.serverFields
-			};
+			const parsed = def.patchSchema.safeParse(clientInput(input, def.serverOwned));
 			return inTransaction(o.transaction, async (t) => {
 				const row = await lockRow(actor, id, t);
 				if (row.deletedAt) throw new NotFoundError();
+				if (!parsed.success) {
+					// Not theirs to change at all comes first (403), then what is wrong in it (400).
+					await def.rules?.authorize?.(ctx(actor, 'update', row, {}, t, o.via));
+					throw ValidationError.fromZod(parsed.error);
+				}
+				const fields = { ...(parsed.data as Record<string, unknown>), ...o.serverFields };
+				const changed = Object.entries(changedFields(row, fields));
+				await check(ctx(actor, 'update', row, Object.fromEntries(changed), t, o.via));
 				if (row.version !== baseVersion) throw new StaleVersionError(def.toRecord(row));
-				const changed = Object.entries(fields).filter(([k, v]) => !same(row.get(k), v));
 				if (changed.length === 0) return def.toRecord(row);
 				const version = row.version + 1;
 				const fv = JSON.parse(row.fieldVersions) as Record<string, number>;
@@ -222,6 +319,7 @@ export function defineAggregate<C extends z.ZodType, P extends z.ZodType>(def: A
 			return inTransaction(o.transaction, async (t) => {
 				const row = await lockRow(actor, id, t);
 				if (row.deletedAt) return def.toRecord(row);
+				await check(ctx(actor, 'delete', row, {}, t, o.via));
 				if (row.version !== baseVersion) throw new StaleVersionError(def.toRecord(row));
 				row.set({
 					version: row.version + 1,

@@ -1,8 +1,14 @@
 /**
  * Append-only ops (readings, spark tests, swap tests, sign-offs) in bulk: one lookup of the
- * tests and sheets they refer to, the server's own result for every reading (the same pure
- * function the phone uses), one block of feed seqs, and one bulk INSERT per table — never a
- * commit per row. The op id and seq live on the record's own row.
+ * tests and sheets they refer to, the rulebook's `refuseAppend` for every record (a job the
+ * actor sees, sign-offs by leads, no apprentice on a hybrid), the server's own result for
+ * every reading (the same pure function the phone uses), one block of feed seqs, and one
+ * bulk INSERT per table — never a commit per row. The op id and seq live on the record's
+ * own row; its author (the signer of a sign-off) is the session's user, never a field.
+ *
+ * This is the one sanctioned way around `defineAggregate`: these records are never changed
+ * once written, so they need no versions, merge or audit of changes, and a push carries
+ * hundreds of them (the path `npm run bench:sync` measures).
  *
  * This is the sync hot path (a push carries hundreds of readings): its statements go straight
  * to the transaction's driver connection (`rawQuery`, `rawBatch`), the rows are fully built
@@ -14,21 +20,25 @@ import { evaluateReading, meterFor, sameResult, type CheckSpec, type Temperature
 import { readingCreate, signoffCreate, sparkTestCreate, swapTestCreate } from '../../schemas/records';
 import type { Op, PushResult, Reason } from '../../sync/protocol';
 import { stringifyNumbers } from '../../sync/json';
-import { isLead, type Actor } from '../auth/types';
+import type { Actor } from '../auth/types';
 import { nextSeq } from '../db/feed';
 import { rawBatch, rawQuery, sqlDateTime } from '../db/raw';
-import { mayOpenJob } from '../services/access';
-import { groupByTable, type AppendTable, type StoredAppendEntity } from './append-tables';
+import { refuseAppend } from '../services/rules';
+import { groupByTable, type AppendTable, type StoredAppendEntity } from '../db/append-tables';
 import { quickReadingCreate } from './quick-parse';
 
 type Ctx = { actor: Actor; t: Transaction };
-type TestRow = { id: string; job_id: string; assignee_id: string | null; technician_id: string | null; sheet_id: string | null; meter: string | null; temperature: string | null; deleted: number | bigint; checks: string | null };
+type TestRow = { id: string; job_id: string; assignee_id: string | null; hybrid: number | bigint | null; technician_id: string | null; sheet_id: string | null; meter: string | null; temperature: string | null; deleted: number | bigint; checks: string | null };
 type MeterSetup = Parameters<typeof meterFor>[0];
+/** A job as the rulebook needs it for an append-only record. */
+type JobInfo = { assigneeId: string | null; hybrid: boolean };
 /**
  * A test as the readings need it, its snapshot parsed once per push (and per range read on);
  * `sheetChecks` are its pinned sheet's checks (undefined when that sheet is not found).
  */
 type TestInfo = TestRow & {
+	/** Its job as the rulebook sees it. */
+	job: JobInfo;
 	meterSetup: MeterSetup;
 	tempSnap: TemperatureSnapshot;
 	meters: Map<string | null, ReturnType<typeof meterFor>>;
@@ -68,12 +78,13 @@ async function loadTests(ids: string[], { actor, t }: Ctx) {
 	if (!ids.length) return new Map<string, TestInfo>();
 	const rows = await rawQuery<TestRow[]>(
 		t,
-		`SELECT t.id, t.job_id, j.assignee_id, t.technician_id, t.sheet_id, t.meter, t.temperature,
-		        (t.deleted_at IS NOT NULL) AS deleted, s.checks
+		`SELECT t.id, t.job_id, j.assignee_id, v.hybrid, t.technician_id, t.sheet_id, t.meter, t.temperature,
+		        (t.deleted_at IS NOT NULL OR j.deleted_at IS NOT NULL) AS deleted, s.checks
 		 FROM tests t JOIN jobs j ON j.id = t.job_id
+		 LEFT JOIN vehicles v ON v.id = j.vehicle_id AND v.workshop_id = ?
 		 LEFT JOIN spec_sheets s ON s.id = t.sheet_id AND s.workshop_id = ?
 		 WHERE t.id IN (?) AND t.workshop_id = ?`,
-		[actor.workshopId, ids, actor.workshopId]
+		[actor.workshopId, actor.workshopId, ids, actor.workshopId]
 	);
 	const sheets = new Map<string, CheckSpec[]>();
 	return new Map(
@@ -81,6 +92,7 @@ async function loadTests(ids: string[], { actor, t }: Ctx) {
 			if (r.sheet_id && r.checks != null && !sheets.has(r.sheet_id)) sheets.set(r.sheet_id, JSON.parse(r.checks));
 			const info: TestInfo = {
 				...r,
+				job: { assigneeId: r.assignee_id, hybrid: Boolean(r.hybrid) },
 				meterSetup: r.meter ? (JSON.parse(r.meter) as MeterSetup) : null,
 				meters: new Map(),
 				tempSnap: r.temperature ? (JSON.parse(r.temperature) as TemperatureSnapshot) : { mode: 'unknown' as const },
@@ -92,13 +104,15 @@ async function loadTests(ids: string[], { actor, t }: Ctx) {
 }
 
 async function loadJobs(ids: string[], { actor, t }: Ctx) {
-	if (!ids.length) return new Map<string, string | null>();
-	const rows = await rawQuery<{ id: string; assignee_id: string | null }[]>(
+	if (!ids.length) return new Map<string, JobInfo>();
+	const rows = await rawQuery<{ id: string; assignee_id: string | null; hybrid: number | bigint | null }[]>(
 		t,
-		'SELECT id, assignee_id FROM jobs WHERE id IN (?) AND workshop_id = ? AND deleted_at IS NULL',
-		[ids, actor.workshopId]
+		`SELECT j.id, j.assignee_id, v.hybrid FROM jobs j
+		 LEFT JOIN vehicles v ON v.id = j.vehicle_id AND v.workshop_id = ?
+		 WHERE j.id IN (?) AND j.workshop_id = ? AND j.deleted_at IS NULL`,
+		[actor.workshopId, ids, actor.workshopId]
 	);
-	return new Map(rows.map((r) => [r.id, r.assignee_id]));
+	return new Map(rows.map((r) => [r.id, { assigneeId: r.assignee_id, hybrid: Boolean(r.hybrid) }]));
 }
 
 /**
@@ -128,17 +142,17 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 	const ids = (k: string) => [...new Set(parsed.flatMap((p) => ('f' in p && p.f![k] ? [p.f![k] as string] : [])))];
 	const tests = await loadTests(ids('testId'), ctx);
 	const jobs = await loadJobs(ids('jobId'), ctx);
-	const mine = (assigneeId: string | null) => mayOpenJob(ctx.actor, { assigneeId });
 	return mapInSlices(parsed, (p): Prepared | PushResult => {
 		if (!('f' in p) || !p.f) return reject(p.op, 'invalid', (p as { error: string }).error);
 		const { op, f } = p;
 		/** The seq (set when the rows are sent), the `BASE` columns, then the table's own. */
 		const row = (jobId: unknown, testId: unknown, ...rest: unknown[]) => [0, ctx.actor.workshopId, op.entityId, op.opId, ctx.actor.userId, ctx.actor.deviceId, deviceDateTime(op.deviceTime), jobId, testId, ...rest];
 		if (op.entity === 'reading' || op.entity === 'signoff') {
-			const test = tests.get(f.testId as string);
-			if (!test || Number(test.deleted) || !mine(test.assignee_id)) return reject(op, 'not_found');
+			const found = tests.get(f.testId as string);
+			const test = found && !Number(found.deleted) ? found : undefined;
+			const refusal = refuseAppend(ctx.actor, op.entity, test?.job);
+			if (refusal || !test) return reject(op, refusal?.reason ?? 'not_found', refusal?.message);
 			if (op.entity === 'signoff') {
-				if (!isLead(ctx.actor)) return reject(op, 'forbidden', 'Only a lead signs off');
 				return { op, table: 'signoffs', row: row(test.job_id, test.id, f.mode, f.note ?? null), same: '' };
 			}
 			const checks = test.sheet_id ? test.sheetChecks : null;
@@ -158,7 +172,8 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 			if (mismatch) prepared.mismatch = { device: String(device!.verdict), server: server.verdict };
 			return prepared;
 		}
-		if (!jobs.has(f.jobId as string) || !mine(jobs.get(f.jobId as string)!)) return reject(op, 'not_found');
+		const refusal = refuseAppend(ctx.actor, op.entity, jobs.get(f.jobId as string));
+		if (refusal) return reject(op, refusal.reason, refusal.message);
 		const [jobId, testId, note] = [f.jobId, f.testId ?? null, f.note ?? null];
 		if (op.entity === 'spark_test') {
 			return { op, table: 'spark_tests', row: row(jobId, testId, note, f.position, f.gapMm, f.outcome), same: '' };

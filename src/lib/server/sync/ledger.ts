@@ -10,7 +10,7 @@ import type { Transaction } from 'sequelize';
 import { rawQuery } from '../db/raw';
 import type { Actor } from '../auth/types';
 import type { Op, PushResult } from '../../sync/protocol';
-import { APPEND_TABLES, groupByTable, type StoredAppendEntity } from './append-tables';
+import { APPEND_TABLES, groupByTable, type StoredAppendEntity } from '../db/append-tables';
 
 /**
  * First answers stored in the ledger for these opIds, by opId. With a `probe` (an

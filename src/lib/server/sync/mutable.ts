@@ -2,7 +2,10 @@
  * One mutable op (create, patch or delete), inside the batch's savepoint:
  *  1. parse the fields with the aggregate's schema (create: all, patch: those sent);
  *  2. lock the row; another workshop's record is `not_found` (and audited);
- *  3. check the role (`refuseMutable`) and, for a create, the aggregate's own checks;
+ *  3. the aggregate's rules (`check`: the rulebook every channel runs) on the fields the op
+ *     changes — a refusal is `forbidden` with its words, a record the actor may not see is
+ *     `not_found`, a field naming what does not exist is `invalid`; then, for a create, the
+ *     server's own fields (`prepareCreate`: a job's number, a test's technician);
  *  4. run the pure merge rule (`mergeOp`) against the row, its per-field versions and
  *     writers, and its open conflicts;
  *  5. store the outcome through the one write path (`persistMerged`), then the writers and
@@ -13,21 +16,22 @@ import { v7 as uuidv7 } from 'uuid';
 import type { Actor } from '../auth/types';
 import { db } from '../db';
 import { writeAudit } from '../db/feed';
-import { AppError, ValidationError } from '../errors';
-import { parsePatch, persistMerged } from '../services/write-path';
+import { AppError, ForbiddenError, ValidationError } from '../errors';
+import { changedFields, parsePatch, persistMerged } from '../services/write-path';
 import { mergeOp, type Conflict, type RecordState, type Writer } from '../../sync/merge';
 import type { Op, PushResult, Reason } from '../../sync/protocol';
-import { AGGREGATES, refuseMutable, type MutableEntity } from './registry';
+import { AGGREGATES, type MutableEntity } from './registry';
 import { loadOpenConflicts, saveConflicts } from './conflict-store';
 
 const rejected = (op: Op, reason: Reason, message?: string): PushResult =>
 	({ opId: op.opId, status: 'rejected', reason, ...(message ? { message } : {}) }) as PushResult;
 
 function parseFields(entity: MutableEntity, op: Op): Record<string, unknown> {
-	const { def } = AGGREGATES[entity];
+	const { def, clientInput } = AGGREGATES[entity];
 	if (op.kind === 'delete') return {};
-	if (op.kind === 'patch') return parsePatch(def.patchSchema, op.fields);
-	const r = def.createSchema.safeParse(op.fields);
+	const input = clientInput(op.fields);
+	if (op.kind === 'patch') return parsePatch(def.patchSchema, input);
+	const r = def.createSchema.safeParse(input);
 	if (!r.success) throw ValidationError.fromZod(r.error);
 	return r.data as Record<string, unknown>;
 }
@@ -69,15 +73,20 @@ export async function applyMutableOp(actor: Actor, op: Op, t: Transaction): Prom
 	}
 	const plain = row ? (row.get({ plain: true }) as Record<string, unknown>) : null;
 	try {
-		const refusal = await refuseMutable(actor, op, plain, fields, t);
-		if (refusal) return rejected(op, 'forbidden', refusal);
-		if (!row && op.kind === 'create' && agg.def.prepareCreate) {
-			fields = await agg.def.prepareCreate(actor, fields, t);
+		if (op.kind === 'create') {
+			// A create of a stored record is answered by the merge (the same fields: applied).
+			if (!row) {
+				await agg.check(actor, 'create', null, fields, t);
+				if (agg.def.prepareCreate) fields = await agg.def.prepareCreate(actor, fields, t);
+			}
+		} else if (row && !row.get('deletedAt')) {
+			const kind = op.kind === 'delete' ? 'delete' : 'update';
+			await agg.check(actor, kind, row as never, kind === 'delete' ? {} : changedFields(row, fields), t);
 		}
 	} catch (e) {
+		if (e instanceof ForbiddenError) return rejected(op, 'forbidden', e.message);
 		if (e instanceof ValidationError) return rejected(op, 'invalid', Object.values(e.fields).join('; '));
 		if (e instanceof AppError && e.status === 404) return rejected(op, 'not_found');
-		if (e instanceof AppError && e.status === 403) return rejected(op, 'forbidden', e.message);
 		throw e;
 	}
 	const writers = row ? await loadWriters(entity, op.entityId, t) : {};
@@ -95,7 +104,7 @@ export async function applyMutableOp(actor: Actor, op: Op, t: Transaction): Prom
 	});
 	if (outcome.result.status === 'rejected' || !outcome.state) return outcome.result;
 	const s = outcome.state;
-	const changedFields = Object.fromEntries(outcome.changed.map((c) => [c.field, c.new]));
+	const changedValues = Object.fromEntries(outcome.changed.map((c) => [c.field, c.new]));
 	await persistMerged(
 		agg as never,
 		actor,
@@ -105,7 +114,7 @@ export async function applyMutableOp(actor: Actor, op: Op, t: Transaction): Prom
 			version: s.version,
 			deleted: s.deleted,
 			fieldVersions: s.fieldVersions,
-			fields: row ? changedFields : s.fields,
+			fields: row ? changedValues : s.fields,
 			changed: outcome.changed,
 			feed: outcome.feed
 		},

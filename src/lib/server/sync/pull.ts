@@ -9,8 +9,7 @@ import type { SessionUser } from '../auth/types';
 import { db } from '../db';
 import { ValidationError } from '../errors';
 import type { Change } from '../../sync/protocol';
-import { APPEND_TABLES } from './append-tables';
-import { appendRecord } from './records';
+import { APPEND_TABLES, appendRecord } from '../db/append-tables';
 import { isLead } from '../../roles';
 import { scopeOf, visible, type FeedRow } from './scope';
 

@@ -24,7 +24,6 @@ export async function load(event) {
 		job,
 		history: await jobs.statusHistory(actor, id),
 		next: NEXT_STATUS[job.status],
-		mayClose: user.role !== 'apprentice',
 		...(await jobFormOptions(actor, job))
 	};
 }

@@ -1,0 +1,46 @@
+/**
+ * Tables of the append-only entities (each row carries its op id and feed seq), and how a
+ * row becomes the record the pull sends.
+ */
+import { parseNumbers } from '../../sync/json';
+
+export const APPEND_TABLES = {
+	reading: 'readings',
+	spark_test: 'spark_tests',
+	swap_test: 'swap_tests',
+	signoff: 'signoffs'
+} as const;
+export type StoredAppendEntity = keyof typeof APPEND_TABLES;
+export type AppendTable = (typeof APPEND_TABLES)[StoredAppendEntity];
+
+/** `items` grouped by their table (items with none are left out), each group in order. */
+export function groupByTable<T, V>(
+	items: Iterable<T>,
+	tableOf: (item: T) => AppendTable | undefined,
+	value: (item: T) => V
+): Map<AppendTable, V[]> {
+	const groups = new Map<AppendTable, V[]>();
+	for (const item of items) {
+		const table = tableOf(item);
+		if (!table) continue;
+		const list = groups.get(table);
+		if (list) list.push(value(item));
+		else groups.set(table, [value(item)]);
+	}
+	return groups;
+}
+
+const camel = (s: string) => s.replace(/_([a-z])/g, (_m, c: string) => c.toUpperCase());
+const JSON_COLUMNS = new Set(['samples', 'device_result', 'server_result', 'before_counts', 'after_counts']);
+const HIDDEN = new Set(['workshop_id', 'op_id', 'seq']);
+
+/** The public record of an append-only row, as the pull sends it (camelCase, parsed JSON). */
+export function appendRecord(entity: string, row: Record<string, unknown>): Record<string, unknown> {
+	const out: Record<string, unknown> = { entity };
+	for (const [k, v] of Object.entries(row)) {
+		if (HIDDEN.has(k)) continue;
+		out[camel(k)] = JSON_COLUMNS.has(k) && typeof v === 'string' ? parseNumbers(v) : k === 'mismatch' ? Boolean(v) : k === 'gap_mm' ? Number(v) : v;
+	}
+	out.version = 1;
+	return out;
+}

@@ -1,0 +1,286 @@
+/**
+ * The rulebook (DESIGN §6): who may create, change, delete and see each record, written once
+ * per aggregate and run by the one write path (`defineAggregate`) for every channel — form
+ * actions, JSON routes and sync ops alike — and, for the append-only records of sync, by
+ * `refuseAppend`. The role rules themselves are the pure functions of `src/lib/rules.ts`,
+ * which the phone calls too.
+ *
+ * Each rule throws: `ForbiddenError` (403; sync answers `rejected: forbidden` with the same
+ * words), `NotFoundError` (404: a record the actor may not see is not there for them) or
+ * `ValidationError` (400: a field names something that does not exist or does not fit).
+ * Another workshop's records never reach a rule: the write path finds rows only in the
+ * actor's workshop.
+ */
+import { Op, type Transaction } from 'sequelize';
+import { isLead } from '../../roles';
+import {
+	refuseAssignee,
+	refuseHybridWork,
+	refuseSignOff,
+	refuseStatusChange,
+	seesJob
+} from '../../rules';
+import { findIdentityProblems } from '../../schemas/vehicle';
+import type { Actor } from '../auth/types';
+import { Component, Customer, Job, SpecSheet, User, Vehicle } from '../db/models';
+import { ForbiddenError, NotFoundError, SheetApprovedError, ValidationError } from '../errors';
+import type { RuleContext, Rules } from './write-path';
+
+export { seesJob };
+
+/** Roles a job can be assigned to. */
+export const ASSIGNABLE_ROLES = ['technician', 'apprentice'] as const;
+
+function refuse(why: string | null): void {
+	if (why) throw new ForbiddenError(why);
+}
+function leadsOnly(actor: Actor, why: string): void {
+	if (!isLead(actor)) throw new ForbiddenError(why);
+}
+
+/** A live job of the actor's workshop with its vehicle's hybrid flag, or null. */
+export async function jobWithVehicle(actor: Actor, jobId: unknown, t?: Transaction) {
+	if (typeof jobId !== 'string') return null;
+	const job = await Job.findOne({
+		where: { id: jobId, workshopId: actor.workshopId, deletedAt: { [Op.is]: null } },
+		transaction: t
+	});
+	if (!job) return null;
+	const vehicle = job.vehicleId
+		? await Vehicle.findOne({ where: { id: job.vehicleId, workshopId: actor.workshopId }, transaction: t })
+		: null;
+	return { job, hybrid: Boolean(vehicle?.hybrid) };
+}
+
+/** The live job `jobId` that the actor sees, with its hybrid flag: 404 otherwise. */
+export async function seenJob(actor: Actor, jobId: unknown, t?: Transaction) {
+	const found = await jobWithVehicle(actor, jobId, t);
+	if (!found || !seesJob(actor, found.job)) throw new NotFoundError('Job');
+	return found;
+}
+
+/** Whether the apprentice has a live job of theirs with this customer or vehicle on it. */
+async function onOwnJob(actor: Actor, kind: 'customerId' | 'vehicleId', id: unknown, t: Transaction) {
+	const n = await Job.count({
+		where: {
+			workshopId: actor.workshopId,
+			assigneeId: actor.userId,
+			deletedAt: { [Op.is]: null },
+			[kind]: id as string
+		},
+		transaction: t
+	});
+	return n > 0;
+}
+
+async function assertLive(
+	model: typeof Customer | typeof Vehicle,
+	actor: Actor,
+	id: unknown,
+	field: string,
+	message: string,
+	t: Transaction
+) {
+	if (!id) return;
+	const n = await (model as typeof Customer).count({
+		where: { id: id as string, workshopId: actor.workshopId, deletedAt: { [Op.is]: null } },
+		transaction: t
+	});
+	if (!n) throw new ValidationError({ [field]: message });
+}
+
+/**
+ * Jobs. Technicians and apprentices open jobs for themselves and change only the jobs
+ * assigned to them; only a workshop lead or owner assigns a job to someone else or removes
+ * one; apprentices never close a job; only a lead or owner reopens a closed one.
+ */
+export const jobRules: Rules = {
+	authorize({ actor, kind, row, changed }) {
+		if (kind === 'create') {
+			if ('assigneeId' in changed) refuse(refuseAssignee(actor, (changed.assigneeId as string) ?? null));
+			refuse(refuseStatusChange(actor, 'open', (changed.status as string | undefined) ?? 'open'));
+			return;
+		}
+		if (!seesJob(actor, row!)) throw new ForbiddenError('You can change only the jobs assigned to you');
+		if (kind === 'delete') return leadsOnly(actor, 'Only a workshop lead can remove a job');
+		if ('assigneeId' in changed) refuse(refuseAssignee(actor, (changed.assigneeId as string) ?? null));
+		if ('status' in changed) refuse(refuseStatusChange(actor, row!.status as string, changed.status as string));
+	},
+	async checkFields({ actor, changed, t }) {
+		const fields: Record<string, string> = {};
+		const live = async (model: typeof Customer | typeof Vehicle, field: string, message: string) => {
+			try {
+				await assertLive(model, actor, changed[field], field, message, t);
+			} catch (e) {
+				if (!(e instanceof ValidationError)) throw e;
+				Object.assign(fields, e.fields);
+			}
+		};
+		await live(Customer, 'customerId', 'No such customer in this workshop');
+		await live(Vehicle, 'vehicleId', 'No such vehicle in this workshop');
+		if (changed.assigneeId) {
+			const user = await User.findOne({
+				where: {
+					id: changed.assigneeId as string,
+					workshopId: actor.workshopId,
+					active: true,
+					role: [...ASSIGNABLE_ROLES]
+				},
+				transaction: t
+			});
+			if (!user) fields.assigneeId = 'Choose a technician or apprentice of this workshop';
+		}
+		if (Object.keys(fields).length) throw new ValidationError(fields);
+	}
+};
+
+/**
+ * Customers and vehicles: everyone in the workshop adds and changes them, except
+ * apprentices, who add one only for a job of theirs and change only those on their jobs;
+ * only a workshop lead or owner removes one.
+ */
+function partyRules(kind: 'customer' | 'vehicle'): Rules['authorize'] {
+	const ref = kind === 'customer' ? 'customerId' : 'vehicleId';
+	return async ({ actor, kind: write, row, t, via }) => {
+		if (write === 'delete') return leadsOnly(actor, `Only a workshop lead can remove a ${kind}`);
+		if (actor.role !== 'apprentice') return;
+		if (write === 'create') {
+			const job = via?.jobId ? await jobWithVehicle(actor, via.jobId, t) : null;
+			if (!job || job.job.assigneeId !== actor.userId)
+				throw new ForbiddenError(
+					`Apprentices add a ${kind} only for one of their own jobs: start from the job`
+				);
+			return;
+		}
+		if (!(await onOwnJob(actor, ref, row!.id, t)))
+			throw new ForbiddenError(`Apprentices change only the ${kind}s of their own jobs`);
+	};
+}
+
+export const customerRules: Rules = { authorize: partyRules('customer') };
+
+export const vehicleRules: Rules = {
+	authorize: partyRules('vehicle'),
+	async checkFields({ actor, kind, row, changed, t }) {
+		await assertLive(Customer, actor, changed.customerId, 'customerId', 'No such customer in this workshop', t);
+		if (kind === 'update') {
+			const problems = findIdentityProblems({ ...row, ...changed } as never);
+			if (Object.keys(problems).length) throw new ValidationError(problems);
+		}
+	}
+};
+
+/**
+ * Tests: on a job the actor sees (404 otherwise); never an airbag component; no apprentice
+ * on a hybrid or electric vehicle; a test is changed or removed by its technician or a lead.
+ */
+export const testRules: Rules = {
+	async authorize({ actor, kind, row, changed, t }) {
+		const { hybrid } = await seenJob(actor, row ? row.jobId : changed.jobId, t);
+		refuse(refuseHybridWork(actor, hybrid));
+		if (row && !isLead(actor) && row.technicianId && row.technicianId !== actor.userId)
+			throw new ForbiddenError('This test belongs to someone else');
+		if (kind !== 'delete' && changed.componentId) {
+			const c = await Component.findOne({
+				where: { id: changed.componentId as string, workshopId: actor.workshopId },
+				transaction: t
+			});
+			if (((c?.cautions as string[] | null) ?? []).includes('airbag'))
+				throw new ForbiddenError('Airbag components are never tested with an ohmmeter');
+		}
+	},
+	async checkFields({ actor, kind, row, changed, t }) {
+		if (kind === 'delete') return;
+		const touches = ['componentId', 'sheetId', 'sheetVersion'].some((k) => k in changed);
+		if (kind === 'update' && !touches) return;
+		const f = { ...row, ...changed };
+		if (f.componentId && 'componentId' in changed) {
+			const n = await Component.count({
+				where: { id: f.componentId as string, workshopId: actor.workshopId },
+				transaction: t
+			});
+			if (!n) throw new ValidationError({ componentId: 'No such component in the library' });
+		}
+		if (!f.sheetId) return;
+		const s = await SpecSheet.findOne({
+			where: { id: f.sheetId as string, workshopId: actor.workshopId },
+			transaction: t
+		});
+		if (!s || s.state !== 'approved')
+			throw new ValidationError({ sheetId: 'Only an approved spec sheet can be used' });
+		if (f.componentId && s.componentId !== f.componentId)
+			throw new ValidationError({ sheetId: 'This sheet belongs to another component' });
+		if (changed.sheetVersion != null && changed.sheetVersion !== s.sheetVersion)
+			throw new ValidationError({ sheetVersion: 'The version does not match the sheet' });
+	}
+};
+
+/** 400 naming `partNumber` when another component of the workshop has it (any letter case). */
+async function assertPartNumberFree(actor: Actor, partNumber: string, id: string | null, t: Transaction) {
+	const other = await Component.findOne({
+		where: { workshopId: actor.workshopId, partNumber },
+		transaction: t
+	});
+	if (other && other.id !== id)
+		throw new ValidationError({
+			partNumber: other.deletedAt
+				? `A removed component had ${other.partNumber}; use another part number`
+				: `${other.partNumber} is already in the library`
+		});
+}
+
+/**
+ * Components of the spec library: anyone adds and changes them; only a workshop lead or
+ * owner removes a caution or a component.
+ */
+export const componentRules: Rules = {
+	authorize({ actor, kind, row, changed }) {
+		if (kind === 'delete') return leadsOnly(actor, 'Only a workshop lead can remove a component');
+		if (kind !== 'update' || !changed.cautions) return;
+		const before = (row!.cautions as string[] | null) ?? [];
+		const after = changed.cautions as string[];
+		if (before.some((c) => !after.includes(c)))
+			leadsOnly(actor, 'Only a workshop lead or owner removes a caution');
+	},
+	async checkFields({ actor, kind, row, changed, t }) {
+		if (typeof changed.partNumber === 'string')
+			await assertPartNumberFree(actor, changed.partNumber, kind === 'create' ? null : (row!.id as string), t);
+	}
+};
+
+/** The fields that approve a sheet: only a lead or owner sets them (through the approval). */
+const APPROVAL = ['state', 'approvedBy', 'approvedAt'];
+
+/**
+ * Spec sheets: drafts by anyone; an approved version never changes nor goes; approval by a
+ * workshop lead or owner; a draft is discarded by its author or a lead.
+ */
+export const sheetRules: Rules = {
+	authorize({ actor, kind, row, changed, current }) {
+		const approving = APPROVAL.some((k) => k in changed) && changed.state !== 'draft';
+		if (approving) leadsOnly(actor, 'Only a workshop lead or owner approves a sheet');
+		if (kind === 'create') return;
+		if (row!.state === 'approved') throw new SheetApprovedError(current());
+		if (kind === 'delete' && !isLead(actor) && row!.createdBy !== actor.userId)
+			throw new ForbiddenError('Only its author or a workshop lead discards a draft');
+	}
+};
+
+/** Why an append-only record may not be stored, or null. */
+export type AppendRefusal = { reason: 'not_found' | 'forbidden'; message?: string };
+
+/**
+ * The append-only records of sync (readings, spark and swap tests, sign-offs; photos are
+ * not taken yet): on a job the actor sees (`not_found` otherwise, as for a record of
+ * another workshop); sign-offs by a workshop lead or owner only; no apprentice work on a
+ * hybrid or electric vehicle. `job` is the record's job as the push loaded it, in bulk.
+ */
+export function refuseAppend(
+	actor: Actor,
+	entity: string,
+	job: { assigneeId: string | null; hybrid: boolean } | undefined
+): AppendRefusal | null {
+	if (!job || !seesJob(actor, job)) return { reason: 'not_found' };
+	const why = entity === 'signoff' ? refuseSignOff(actor) : refuseHybridWork(actor, job.hybrid);
+	return why ? { reason: 'forbidden', message: why } : null;
+}
