@@ -187,7 +187,7 @@ describe('quickPushBody', () => {
 			}),
 			{ numRuns: 3000 }
 		);
-	});
+	}, 60_000); // a fixed 3,000 cases: the limit only guards against a hang on a busy machine
 
 	it('leaves a __proto__ field name to zod, which drops it', () => {
 		const text = `{"deviceId":"d","ops":[{"opId":"${uuidv7()}","entity":"reading","entityId":"${uuidv7()}","kind":"create","baseVersion":0,"deviceTime":"2026-12-01T08:00:00Z","fields":{"__proto__":{"x":1},"note":"a"}}]}`;
@@ -238,7 +238,7 @@ describe('quickReadingCreate', () => {
 			}),
 			{ numRuns: 3000 }
 		);
-	});
+	}, 60_000); // a fixed 3,000 cases: the limit only guards against a hang on a busy machine
 
 	const plain = () => ({
 		testId: uuidv7(),
