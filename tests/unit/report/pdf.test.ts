@@ -1,0 +1,58 @@
+import { execFileSync } from 'node:child_process';
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { fontRuns } from '../../../src/lib/server/reports/fonts';
+import { renderReportPdf } from '../../../src/lib/server/reports/pdf';
+import { buildReport } from '../../../src/lib/report/words';
+import { facts } from './fixtures';
+
+const dir = mkdtempSync(path.join(tmpdir(), 'fb-pdf-'));
+/** Text of a PDF as poppler's pdftotext reads it (Debian's poppler-utils). */
+function pdfText(pdf: Buffer, name = 'r.pdf'): string {
+	const file = path.join(dir, name);
+	writeFileSync(file, pdf);
+	return execFileSync('pdftotext', ['-layout', file, '-'], { encoding: 'utf8' });
+}
+function pageSize(pdf: Buffer, name: string): string {
+	const file = path.join(dir, name);
+	writeFileSync(file, pdf);
+	return /Page size:\s+([\d.]+ x [\d.]+)/.exec(execFileSync('pdfinfo', [file], { encoding: 'utf8' }))![1];
+}
+
+describe('the report’s PDF', () => {
+	const doc = buildReport(facts({ workDone: 'Replaced the ignition coil on cylinder 3.' }));
+
+	it('sets Ω from the greek subset, the rest from latin', () => {
+		expect(fontRuns('19.2 kΩ', 400)).toEqual([
+			{ font: 'rc-latin-400', text: '19.2 k' },
+			{ font: 'rc-greek-400', text: 'Ω' }
+		]);
+		expect(fontRuns('\u2126', 700)).toEqual([{ font: 'rc-greek-700', text: 'Ω' }]);
+	});
+
+	it('says what the page says, Ω included, as the text extracted from it shows', async () => {
+		const text = (await pdfText(await renderReportPdf(doc, { paper: 'a4' }))).replace(/\s+/g, ' ');
+		expect(text).toContain('Vehicle report, job 1042');
+		expect(text).toContain(doc.findings[2].sentence);
+		expect(text).toContain('Secondary winding: 19.2 kΩ. Maker’s figure: 8.8 to 14.6 kΩ (engine cold, below 50 °C)');
+		expect(text).toContain('Replaced the ignition coil on cylinder 3.');
+		expect(text).toContain('Harrow Lane Auto Electrics');
+		expect(text).toContain('vehicle maker’s procedure and on local regulations');
+	});
+
+	it('comes in A4 (595 × 842 pt) and US Letter (612 × 792 pt)', async () => {
+		// ISO 216: A4 is 210 × 297 mm; US Letter is 8.5 × 11 in; 72 pt to the inch.
+		expect(pageSize(await renderReportPdf(doc, { paper: 'a4' }), 'a4.pdf')).toMatch(/^595\.\d+ x 841\.\d+$/);
+		expect(pageSize(await renderReportPdf(doc, { paper: 'letter' }), 'letter.pdf')).toBe('612 x 792');
+	});
+
+	it('embeds the shipped font and no other', async () => {
+		const file = path.join(dir, 'fonts.pdf');
+		writeFileSync(file, await renderReportPdf(doc, { paper: 'a4' }));
+		const fonts = execFileSync('pdffonts', [file], { encoding: 'utf8' }).split('\n').slice(2).filter(Boolean);
+		expect(fonts.length).toBeGreaterThan(1);
+		for (const f of fonts) expect(f).toMatch(/RobotoCondensed.* yes yes yes/);
+	});
+});
