@@ -4,6 +4,7 @@
  * 127.0.0.1 with ORIGIN set to the URL printed at the end.
  */
 import { buildIfNeeded, freePort, migrate, serve } from './lib/app';
+import { mailEnv, startMailServer, stopMailServer } from './lib/mail';
 import { dbEnv, ensureDatabase, startServer } from './lib/mariadb';
 
 const name = process.env.DB_NAME ?? 'fieldbench';
@@ -21,16 +22,24 @@ const made = await seedDemo();
 await closeDb();
 console.log(made ? `Demo workshop: ${made} record(s) created.` : 'Demo workshop: present.');
 
+// The local fake mail server catches every e-mail unless a real one is configured (SMTP_HOST).
+const mail = process.env.SMTP_HOST ? null : await startMailServer();
+if (mail) console.log(`Fake mail server on 127.0.0.1:${mail.port}: e-mail is saved in ${mail.dir}, nothing is sent`);
+
 buildIfNeeded();
 const appPort = await freePort(Number(process.env.PORT ?? 3000));
-const { child, url } = await serve(appPort, dbEnv(dbPort, name));
+const { child, url } = await serve(appPort, {
+	...dbEnv(dbPort, name),
+	...(mail ? mailEnv(mail.port, mail.dir) : {})
+});
 console.log(
 	`\nFieldbench is running at ${url}\n(stop with Ctrl+C; stop the database with: npm run db:stop)\n`
 );
 
 for (const sig of ['SIGINT', 'SIGTERM'] as const) {
-	process.on(sig, () => {
+	process.on(sig, async () => {
 		if (child.pid) process.kill(-child.pid, sig);
+		if (mail?.started) await stopMailServer();
 		process.exit(0);
 	});
 }

@@ -131,3 +131,21 @@ export type ReportDoc = {
 	technicians: string;
 	closing: string;
 };
+
+/** A report sent on a job, as the job's history shows it. */
+export type SentReport = {
+	id: string;
+	channel: 'email' | 'link';
+	recipient: string | null;
+	paper: Paper;
+	createdAt: Date;
+	by: string;
+	expiresAt: Date;
+	withdrawnAt: Date | null;
+	withdrawnBy: string | null;
+	pdfBytes: number;
+	mail: { state: 'queued' | 'sending' | 'sent' | 'failed'; attempts: number; lastReply: string | null; sentAt: Date | null; nextAttemptAt: Date | null } | null;
+	/** Every attempt at sending its e-mail, oldest first. */
+	attempts: { attempt: number; outcome: string; reply: string | null; at: Date }[];
+};
+
