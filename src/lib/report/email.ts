@@ -14,7 +14,7 @@ export function emailText(r: ReportDoc, link: string, openUntil: string): string
 	const lines = [
 		r.customerName ? `Dear ${r.customerName},` : 'Hello,',
 		'',
-		`here is the report on your ${r.vehicle ? r.vehicle.heading : 'vehicle'} (job ${r.jobNumber}, ${r.dateText}).`,
+		`Here is the report on your ${r.vehicle ? r.vehicle.heading : 'vehicle'} (job ${r.jobNumber}, ${r.dateText}).`,
 		'',
 		`What you told us: ${r.reported}`,
 		'',
