@@ -9,7 +9,7 @@ let child: ChildProcess | null = null;
 /** This runner's own fake mail server (its messages in .data/mail/<name>/). */
 const MAIL_NAME = `e2e-${process.pid}`;
 /** E-mail looked at often and retried soon, so the tests do not wait long. */
-const FAST_MAIL = { MAIL_POLL_MS: '200', MAIL_RETRY_BASE_MS: '300', MAIL_MAX_ATTEMPTS: '8' };
+const FAST_MAIL = { MAIL_POLL_MS: '500', MAIL_RETRY_BASE_MS: '300', MAIL_MAX_ATTEMPTS: '8' };
 let created: Awaited<ReturnType<typeof freshDatabase>> | null = null;
 
 export async function setup(project: TestProject) {

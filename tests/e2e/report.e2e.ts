@@ -85,7 +85,7 @@ describe('the customer report from the desk', () => {
 		await page.getByTestId('reports-sent').getByRole('link', { name: 'Send report' }).click();
 		await page.waitForURL(`${base}/jobs/${JOB}/report`);
 		await page.getByLabel('What was done').fill('Replaced the ignition coil on cylinder 3.');
-		await page.getByLabel('Recommendation 1').fill('Replace the spark plugs at the next service.');
+		await page.getByLabel('Recommendation 1', { exact: true }).fill('Replace the spark plugs at the next service.');
 		await page.getByRole('button', { name: 'Update the preview' }).click();
 		const report = page.getByTestId('report');
 		await expect(report.getByText('Replaced the ignition coil on cylinder 3.').waitFor()).resolves.toBeUndefined();
@@ -112,7 +112,10 @@ describe('the customer report from the desk', () => {
 		const pdf = await page.request.get(await row.getByRole('link', { name: 'The PDF that was sent' }).getAttribute('href').then((h) => `${base}${h}`));
 		expect(pdf.headers()['content-type']).toBe('application/pdf');
 		expect(await axeViolations(page)).toEqual([]);
-		await shot(page, 'report-history-desk');
+		await row.screenshot({ path: path.resolve('screenshots', 'report-history-row-desk.png') });
+		await page.setViewportSize(PHONE);
+		await page.getByTestId('reports-sent').screenshot({ path: path.resolve('screenshots', 'report-history-phone.png') });
+		await atPhoneSize(page, 'report-history');
 	});
 
 	it('opens the caught message with its text, the PDF and the link', async () => {

@@ -1,5 +1,5 @@
 import { execFileSync } from 'node:child_process';
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
@@ -46,6 +46,23 @@ describe('the report’s PDF', () => {
 		// ISO 216: A4 is 210 × 297 mm; US Letter is 8.5 × 11 in; 72 pt to the inch.
 		expect(pageSize(await renderReportPdf(doc, { paper: 'a4' }), 'a4.pdf')).toMatch(/^595\.\d+ x 841\.\d+$/);
 		expect(pageSize(await renderReportPdf(doc, { paper: 'letter' }), 'letter.pdf')).toBe('612 x 792');
+	});
+
+	it('draws a first page with ink on it, kept as a PNG to look at (pdftoppm)', async () => {
+		const file = path.join(dir, 'look.pdf');
+		writeFileSync(file, await renderReportPdf(doc, { paper: 'a4' }));
+		// A greyscale PGM at 36 dpi: 298 × 421 px for A4 (210 × 297 mm).
+		execFileSync('pdftoppm', ['-r', '36', '-gray', '-f', '1', '-l', '1', file, path.join(dir, 'look')]);
+		const pgm = readFileSync(path.join(dir, 'look-1.pgm'));
+		const [, w, h] = /^P5\s+(\d+)\s+(\d+)\s+255\s/.exec(pgm.subarray(0, 40).toString('latin1'))!.map(Number);
+		expect([w, h]).toEqual([298, 421]);
+		const pixels = pgm.subarray(pgm.length - w * h);
+		const dark = pixels.filter((v) => v < 128).length / pixels.length;
+		expect(dark).toBeGreaterThan(0.01); // text, rules and shapes
+		expect(dark).toBeLessThan(0.25); // not a black page
+		const out = path.resolve('test-results', 'report');
+		mkdirSync(out, { recursive: true });
+		execFileSync('pdftoppm', ['-r', '60', '-png', file, path.join(out, 'report-a4')]);
 	});
 
 	it('embeds the shipped font and no other', async () => {
