@@ -311,6 +311,29 @@ describe('who sends reports', () => {
 	});
 });
 
+describe('apprentice work', () => {
+	it('stays out of the report until a lead signs it off', async () => {
+		const l = ws.users.lead.actor;
+		const job = await jobs.create(l, { complaint: 'Cranks, no start', customerId: consenting, vehicleId, assigneeId: ws.users.apprentice.id });
+		const apprentice = await signedIn(ws, 'apprentice');
+		const t = create('test', { jobId: job.id, componentId, sheetId, position: '1', meter: METER, temperature: { mode: 'measured', tempC: 20 } });
+		const reading = create('reading', { testId: t.entityId, checkKey: 'primary', position: '1', samples: [{ value: 0.48, unit: 'Ω' }], rangeLabel: '200 Ω' });
+		expect((await push(apprentice, 'phone-apprentice', [t, reading])).map((x) => x.status)).toEqual(['applied', 'applied']);
+
+		const before = await previewReport(l, job.id as string);
+		expect(before.awaitingSignOff).toBe(1);
+		expect(before.doc.findings).toEqual([]);
+		const page = (await (await lead.get(`/jobs/${job.id}/report`, 'text/html')).text()).replace(/\s+/g, ' ');
+		expect(page).toContain('One test logged by an apprentice is left out until a lead signs it off.');
+
+		const signoff = create('signoff', { testId: t.entityId, mode: 'witnessed' });
+		expect((await push(lead, 'desk-lead', [signoff]))[0].status).toBe('applied');
+		const after = await previewReport(l, job.id as string);
+		expect(after.awaitingSignOff).toBe(0);
+		expect(after.doc.findings.map((f) => f.outcomeText)).toEqual(['OK']);
+	});
+});
+
 describe('the outbox with several senders', () => {
 	it('sends each message exactly once while five workers claim at the same time', async () => {
 		const keys = Array.from({ length: 12 }, () => `test-${uuidv7()}`);

@@ -17,7 +17,7 @@
  * The report link travels in `link_secret` only until the message is sent or failed, then it
  * is cleared: afterwards the database holds only the hash of its token.
  */
-import { QueryTypes, type Transaction } from 'sequelize';
+import { QueryTypes, Transaction } from 'sequelize';
 import { v4 as uuidv4, v7 as uuidv7 } from 'uuid';
 import { db } from '../db';
 import { rawQuery } from '../db/raw';
@@ -71,9 +71,22 @@ export type Claimed = {
 	link: string | null;
 };
 
-/** Claim up to `limit` due messages for `worker` (see step 1 above). */
+/**
+ * Claim up to `limit` due messages for `worker` (see step 1 above). READ COMMITTED, so the
+ * scan takes no gap locks that would make claimers wait on each other; a deadlock all the
+ * same claims nothing this round (the next round tries again).
+ */
 export async function claimDue(worker: string, limit = 5): Promise<Claimed[]> {
-	return db().transaction(async (t) => {
+	try {
+		return await claim(worker, limit);
+	} catch (e) {
+		if ((e as { errno?: number; parent?: { errno?: number } }).errno === 1213 || (e as { parent?: { errno?: number } }).parent?.errno === 1213) return [];
+		throw e;
+	}
+}
+
+async function claim(worker: string, limit: number): Promise<Claimed[]> {
+	return db().transaction({ isolationLevel: Transaction.ISOLATION_LEVELS.READ_COMMITTED }, async (t) => {
 		const due = await rawQuery<{ id: string; state: MailState }[]>(
 			t,
 			`SELECT id, state FROM mail_outbox
@@ -109,9 +122,8 @@ export async function claimDue(worker: string, limit = 5): Promise<Claimed[]> {
 		);
 		await rawQuery(
 			t,
-			`INSERT INTO mail_attempts (outbox_id, attempt, worker, outcome, started_at)
-			 SELECT id, attempts, ?, 'sending', UTC_TIMESTAMP(3) FROM mail_outbox WHERE id IN (?)`,
-			[worker, ids]
+			`INSERT INTO mail_attempts (outbox_id, attempt, worker, outcome, started_at) VALUES ${rows.map(() => "(?, ?, ?, 'sending', UTC_TIMESTAMP(3))").join(', ')}`,
+			rows.flatMap((r) => [r.id, r.attempts, worker])
 		);
 		return rows.map((r) => ({
 			id: String(r.id),

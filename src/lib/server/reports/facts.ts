@@ -51,7 +51,7 @@ async function testsOf(actor: Actor, jobId: string) {
 	const sheet = new Map(sheets.map((s) => [s.id, s]));
 	const component = new Map(components.map((c) => [c.id, c]));
 	const latest = latestBy(readings, (r) => `${r.test_id}|${r.position ?? ''}|${r.check_key}`);
-	return tests.map((t): TestFacts & { technicianId: string | null } => {
+	return tests.map((t): TestFacts & { id: string; technicianId: string | null } => {
 		const c = t.componentId ? component.get(t.componentId) : undefined;
 		const checks = ((t.sheetId ? (sheet.get(t.sheetId)?.checks as CheckFacts[] | undefined) : undefined) ?? []).map((k) => ({
 			key: k.key,
@@ -80,6 +80,7 @@ async function testsOf(actor: Actor, jobId: string) {
 			temperature: (t.temperature as TemperatureSnapshot | null) ?? null,
 			checks,
 			readings: results,
+			id: t.id,
 			technicianId: t.technicianId
 		};
 	});
@@ -102,26 +103,38 @@ export async function jobWithParties(actor: Actor, jobId: string): Promise<JobPa
 	return { job, customer, vehicle };
 }
 
-/** Everything the report says about the job, plus the notes the sender adds. */
+/**
+ * Everything the report says about the job, plus the notes the sender adds. A test logged by
+ * an apprentice goes in only once a lead has signed it off; `awaitingSignOff` counts those
+ * left out.
+ */
 export async function gatherFacts(
 	actor: Actor,
 	p: JobParties,
 	settings: ReportSettings,
 	notes: ReportNotes,
 	now = new Date()
-): Promise<ReportFacts> {
+): Promise<{ facts: ReportFacts; awaitingSignOff: number }> {
 	const { job, customer, vehicle } = p;
-	const [tests, sparks, swaps, photos] = await Promise.all([
+	const [all, sparks, swaps, photos] = await Promise.all([
 		testsOf(actor, job.id),
 		select(`SELECT position, gap_mm, outcome FROM spark_tests WHERE workshop_id = ? AND job_id = ? ORDER BY seq`, [actor.workshopId, job.id]),
 		select(`SELECT from_position, to_position, conclusion FROM swap_tests WHERE workshop_id = ? AND job_id = ? ORDER BY seq`, [actor.workshopId, job.id]),
 		photosForCustomer(actor, job.id)
 	]);
-	const testerIds = [...new Set([...tests.map((t) => t.technicianId), job.assigneeId].filter(Boolean))] as string[];
+	const testerIds = [...new Set([...all.map((t) => t.technicianId), job.assigneeId].filter(Boolean))] as string[];
 	const users = await User.findAll({ where: { workshopId: actor.workshopId, id: testerIds } });
 	const names = new Map(users.map((u) => [u.id, u.name]));
+	const apprentice = new Set(users.filter((u) => u.role === 'apprentice').map((u) => u.id));
+	const byApprentice = all.filter((t) => t.technicianId && apprentice.has(t.technicianId)).map((t) => t.id);
+	const signed = new Set(
+		byApprentice.length
+			? (await select('SELECT DISTINCT test_id FROM signoffs WHERE workshop_id = ? AND test_id IN (?)', [actor.workshopId, byApprentice])).map((r) => String(r.test_id))
+			: []
+	);
+	const tests = all.filter((t) => !byApprentice.includes(t.id) || signed.has(t.id));
 	const testers = tests.some((t) => t.readings.length) ? tests.filter((t) => t.readings.length).map((t) => t.technicianId) : [job.assigneeId];
-	return {
+	const facts: ReportFacts = {
 		jobNumber: job.number,
 		complaint: job.complaint,
 		codesBefore: job.codesBefore ?? [],
@@ -140,7 +153,7 @@ export async function gatherFacts(
 			: null,
 		workshop: { name: settings.workshopName, address: settings.address, phone: settings.phone, email: settings.email },
 		technicians: [...new Set(testers.filter((id): id is string => !!id).map((id) => names.get(id) ?? 'A former colleague'))],
-		tests: tests.map(({ technicianId: _t, ...t }) => t),
+		tests: tests.map(({ technicianId: _t, id: _i, ...t }) => t),
 		sparks: latestBy(sparks, (s) => String(s.position)).map((s) => ({
 			position: String(s.position),
 			gapMm: Number(s.gap_mm),
@@ -156,4 +169,5 @@ export async function gatherFacts(
 		photos,
 		date: now.toISOString().slice(0, 10)
 	};
+	return { facts, awaitingSignOff: all.length - tests.length };
 }

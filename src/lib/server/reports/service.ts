@@ -73,6 +73,8 @@ async function load(actor: Actor, jobId: string): Promise<Loaded> {
 
 export type Preview = {
 	doc: ReportDoc;
+	/** Tests by apprentices left out until a lead signs them off. */
+	awaitingSignOff: number;
 	digest: string;
 	customer: { name: string; email: string | null; consent: boolean } | null;
 	emailBlock: string | null;
@@ -84,9 +86,11 @@ export type Preview = {
 export async function previewReport(actor: Actor, jobId: string, notes: unknown = {}): Promise<Preview> {
 	const l = await load(actor, jobId);
 	const n = parse<ReportNotes>(reportNotes, notes);
-	const doc = buildReport(await gatherFacts(actor, l, l.settings, n));
+	const { facts, awaitingSignOff } = await gatherFacts(actor, l, l.settings, n);
+	const doc = buildReport(facts);
 	return {
 		doc,
+		awaitingSignOff,
 		digest: digestOf(doc),
 		customer: l.customer ? { name: l.customer.name, email: l.customer.email, consent: Boolean(l.customer.reportConsent) } : null,
 		emailBlock: emailBlock(l.customer),
@@ -117,7 +121,7 @@ export async function sendReport(actor: Actor, jobId: string, input: unknown, ba
 	const s = parse<ReturnType<typeof sendSchema.parse>>(sendSchema, input);
 	const previous = await findBySendKey(actor, s.sendKey);
 	if (previous) return previous;
-	const doc = buildReport(await gatherFacts(actor, l, l.settings, s));
+	const doc = buildReport((await gatherFacts(actor, l, l.settings, s)).facts);
 	const digest = digestOf(doc);
 	if (digest !== s.digest) throw new ReportChangedError({ ...(await previewReport(actor, jobId, s)) });
 	if (s.channel === 'email') {
