@@ -74,7 +74,7 @@ describe('the customer report from the desk', () => {
 
 	it('shows “Send report” and the reports sent on the job page', async () => {
 		const section = page.getByTestId('reports-sent');
-		await expect(section.getByRole('link', { name: 'Send report' }).isVisible()).resolves.toBe(true);
+		await section.getByRole('link', { name: 'Send report' }).waitFor();
 		await expect(section.textContent()).resolves.toContain('No report has been sent on this job yet.');
 		expect(await axeViolations(page)).toEqual([]);
 		await shot(page, 'report-job-desk');
@@ -121,6 +121,8 @@ describe('the customer report from the desk', () => {
 	it('opens the caught message with its text, the PDF and the link', async () => {
 		await page.getByRole('link', { name: 'Caught e-mail (demo mail server)' }).click();
 		await page.waitForURL(`${base}/mail`);
+		expect(await axeViolations(page)).toEqual([]);
+		await atPhoneSize(page, 'report-mail-list');
 		await page.getByRole('link', { name: /Your vehicle report: job 1001/ }).first().click();
 		await expect(page.getByTestId('mail-to').textContent()).resolves.toContain('ilse.marrow@example.net');
 		const text = (await page.getByTestId('mail-text').textContent()) ?? '';
@@ -130,6 +132,14 @@ describe('the customer report from the desk', () => {
 		expect(await axeViolations(page)).toEqual([]);
 		await shot(page, 'report-mail-desk');
 		link = /http:\/\/\S+\/r\/[A-Za-z0-9_-]{43}/.exec(text)![0];
+	});
+
+	it('keeps the workshop’s report settings on a page of their own', async () => {
+		await page.goto(`${base}/report-settings`);
+		await expect(page.getByLabel('Workshop address').inputValue()).resolves.toBe('7 Tallow Bridge Road, Millbrook MB4 2QT');
+		await expect(page.getByLabel('Days a report link stays open').inputValue()).resolves.toBe('30');
+		expect(await axeViolations(page)).toEqual([]);
+		await atPhoneSize(page, 'report-settings');
 	});
 
 	it('opens the report page from the link, readable at desk and phone size', async () => {
