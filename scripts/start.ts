@@ -5,6 +5,7 @@
  * "Fieldbench is running at http://localhost:PORT"; http://127.0.0.1:PORT works as well.
  */
 import { buildIfNeeded, freePort, migrate, serve } from './lib/app';
+import { mailEnv, startMailServer, stopMailServer } from './lib/mail';
 import { dbEnv, ensureDatabase, startServer } from './lib/mariadb';
 
 const name = process.env.DB_NAME ?? 'fieldbench';
@@ -22,18 +23,26 @@ const made = await seedDemo();
 await closeDb();
 console.log(made ? `Demo workshop: ${made} record(s) created.` : 'Demo workshop: present.');
 
+// The local fake mail server catches every e-mail unless a real one is configured (SMTP_HOST).
+const mail = process.env.SMTP_HOST ? null : await startMailServer();
+if (mail) console.log(`Fake mail server on 127.0.0.1:${mail.port}: e-mail is saved in ${mail.dir}, nothing is sent`);
+
 buildIfNeeded();
 const wantedPort = Number(process.env.PORT ?? 3000);
 const appPort = await freePort(wantedPort);
 if (appPort !== wantedPort) console.log(`Port ${wantedPort} is taken; the app uses ${appPort}.`);
-const { child, url } = await serve(appPort, dbEnv(dbPort, name));
+const { child, url } = await serve(appPort, {
+	...dbEnv(dbPort, name),
+	...(mail ? mailEnv(mail.port, mail.dir) : {})
+});
 // The address comes once, on the last line; the app processes print nothing.
 console.log('Stop with Ctrl+C; stop the database with: npm run db:stop');
 console.log(`\nFieldbench is running at ${url}`);
 
 for (const sig of ['SIGINT', 'SIGTERM'] as const) {
-	process.on(sig, () => {
+	process.on(sig, async () => {
 		if (child.pid) process.kill(-child.pid, sig);
+		if (mail?.started) await stopMailServer();
 		process.exit(0);
 	});
 }

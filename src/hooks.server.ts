@@ -1,13 +1,17 @@
 import type { Handle } from '@sveltejs/kit';
+import { building } from '$app/environment';
 import { readSession } from '$lib/server/auth/session';
 import { closeDb, db } from '$lib/server/db';
 import { errorBody } from '$lib/server/errors';
+import { startMailWorker, stopMailWorker } from '$lib/server/mail/worker';
 
 db(); // registers the models once per server process
 
 // adapter-node stops taking requests on SIGTERM/SIGINT and then emits this: close the
 // database pool so the process ends (its idle connections would keep it alive).
-process.once('sveltekit:shutdown' as 'exit', () => void closeDb());
+// The e-mail worker stops first (a message under way is finished and recorded).
+if (!building) startMailWorker();
+process.once('sveltekit:shutdown' as 'exit', () => void stopMailWorker().finally(closeDb));
 
 export const handle: Handle = async ({ event, resolve }) => {
 	const { user, sessionId } = await readSession(event.cookies, event.url);

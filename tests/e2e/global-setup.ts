@@ -2,9 +2,14 @@
 import type { ChildProcess } from 'node:child_process';
 import type { TestProject } from 'vitest/node';
 import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../../scripts/lib/app';
+import { mailEnv, startMailServer, stopMailServer } from '../../scripts/lib/mail';
 import { finish, freshDatabase } from '../helpers/database';
 
 let child: ChildProcess | null = null;
+/** This runner's own fake mail server (its messages in .data/mail/<name>/). */
+const MAIL_NAME = `e2e-${process.pid}`;
+/** E-mail looked at often and retried soon, so the tests do not wait long. */
+const FAST_MAIL = { MAIL_POLL_MS: '500', MAIL_RETRY_BASE_MS: '300', MAIL_MAX_ATTEMPTS: '8' };
 let created: Awaited<ReturnType<typeof freshDatabase>> | null = null;
 
 export async function setup(project: TestProject) {
@@ -17,7 +22,9 @@ export async function setup(project: TestProject) {
 	await seedDemo();
 	await closeDb();
 	buildIfNeeded();
-	const s = await serve(await freePort(4300), db.env, 'ignore');
+	const mail = await startMailServer(MAIL_NAME);
+	project.provide('mail', { name: MAIL_NAME, port: mail.port, dir: mail.dir });
+	const s = await serve(await freePort(4300), { ...db.env, ...mailEnv(mail.port, mail.dir), ...FAST_MAIL }, 'ignore');
 	child = s.child;
 	project.provide('baseURL', s.url);
 	project.provide('dbEnv', db.env);
@@ -25,5 +32,6 @@ export async function setup(project: TestProject) {
 
 export async function teardown() {
 	if (child) stopServe(child);
+	await stopMailServer(MAIL_NAME, true);
 	await finish(created);
 }

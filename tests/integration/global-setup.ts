@@ -2,10 +2,15 @@
 import type { ChildProcess } from 'node:child_process';
 import type { TestProject } from 'vitest/node';
 import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../../scripts/lib/app';
+import { mailEnv, startMailServer, stopMailServer } from '../../scripts/lib/mail';
 import { finish, freshDatabase } from '../helpers/database';
 
 let created: Awaited<ReturnType<typeof freshDatabase>> | null = null;
 let child: ChildProcess | null = null;
+/** This runner's own fake mail server (its messages in .data/mail/<name>/). */
+const MAIL_NAME = `integration-${process.pid}`;
+/** E-mail looked at often and retried soon, so the tests do not wait long. */
+const FAST_MAIL = { MAIL_POLL_MS: '500', MAIL_RETRY_BASE_MS: '300', MAIL_MAX_ATTEMPTS: '8' };
 
 export async function setup(project: TestProject) {
 	const db = await freshDatabase('fieldbench_test');
@@ -13,9 +18,11 @@ export async function setup(project: TestProject) {
 	Object.assign(process.env, db.env);
 	await migrate();
 	buildIfNeeded();
+	const mail = await startMailServer(MAIL_NAME);
+	project.provide('mail', { name: MAIL_NAME, port: mail.port, dir: mail.dir });
 	const s = await serve(
 		await freePort(4200),
-		{ ...db.env, ADDRESS_HEADER: 'x-forwarded-for' },
+		{ ...db.env, ...mailEnv(mail.port, mail.dir), ...FAST_MAIL, ADDRESS_HEADER: 'x-forwarded-for' },
 		'ignore'
 	);
 	child = s.child;
@@ -25,6 +32,7 @@ export async function setup(project: TestProject) {
 
 export async function teardown() {
 	if (child) stopServe(child);
+	await stopMailServer(MAIL_NAME, true);
 	await finish(created);
 }
 
@@ -32,5 +40,6 @@ declare module 'vitest' {
 	export interface ProvidedContext {
 		dbEnv: Record<string, string>;
 		baseURL: string;
+		mail: { name: string; port: number; dir: string };
 	}
 }

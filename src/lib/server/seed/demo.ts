@@ -6,12 +6,14 @@
 import { Op } from 'sequelize';
 import type { Actor } from '../auth/types';
 import { db } from '../db';
-import { Component, Customer, Job, SpecSheet, User, Vehicle, Workshop } from '../db/models';
+import { Component, Customer, Job, SpecSheet, Test, User, Vehicle, Workshop } from '../db/models';
 import * as customers from '../services/customers';
 import { components, sheets } from '../services/components';
 import { jobs } from '../services/jobs';
 import { vehicles } from '../services/vehicles';
 import { createUser, createWorkshop } from '../services/workshops';
+import { DEMO_TEST_ID, seedDemoTest } from './demo-tests';
+import { readReportSettings, saveReportSettings } from '../reports/settings';
 
 export const DEMO_PASSWORD = 'bench-demo-2026';
 export const DEMO_WORKSHOP = {
@@ -237,6 +239,23 @@ export async function seedDemo(): Promise<number> {
 			await make();
 			made++;
 		}
+	}
+	if ((await readReportSettings(DEMO_WORKSHOP.id)).version === 0) {
+		await saveReportSettings(lead, 0, {
+			address: '7 Tallow Bridge Road, Millbrook MB4 2QT',
+			phone: '0100 555 0100',
+			email: 'desk@tallowbridge.example',
+			paper: 'a4',
+			linkDays: 30,
+			techniciansSend: false
+		});
+		made++;
+	}
+	if (await missing(Test, DEMO_TEST_ID)) {
+		const t = DEMO_USERS[2];
+		const tech = { id: t.id, workshopId: DEMO_WORKSHOP.id, workshopName: DEMO_WORKSHOP.name, email: t.email, name: t.name, role: t.role };
+		await seedDemoTest(tech, { jobId: JOBS[0].id, componentId: COIL.id, sheetId: COIL_SHEET.id });
+		made++;
 	}
 	return made;
 }

@@ -6,6 +6,10 @@ import { actorOf } from '$lib/server/auth/types';
 import { NotFoundError } from '$lib/server/errors';
 import { baseVersionOf, failFrom, valuesOf } from '$lib/server/forms';
 import * as jobs from '$lib/server/services/jobs';
+import { mailConfig } from '$lib/server/mail/config';
+import { mayChangeReportSettings, mayReadCaughtMail, maySendReport, mayWithdrawReport } from '$lib/server/reports/rules';
+import { reportsOfJob, withdrawReport } from '$lib/server/reports/service';
+import { readReportSettings } from '$lib/server/reports/settings';
 import { jobFormOptions } from '../../options.server';
 
 const listOf = (fd: FormData): CodeList => (fd.get('list') === 'after' ? 'after' : 'before');
@@ -24,6 +28,13 @@ export async function load(event) {
 		job,
 		history: await jobs.statusHistory(actor, id),
 		next: NEXT_STATUS[job.status],
+		reports: {
+			list: await reportsOfJob(actor, id),
+			maySend: maySendReport(actor, job, await readReportSettings(actor.workshopId)),
+			mayWithdraw: mayWithdrawReport(actor),
+			settings: mayChangeReportSettings(actor),
+			caughtMail: mayReadCaughtMail(actor) && mailConfig().fakeDir !== null
+		},
 		...(await jobFormOptions(actor, job))
 	};
 }
@@ -73,5 +84,15 @@ export const actions = {
 			return failFrom(e, valuesOf(fd), `addCode-${list}`);
 		}
 		return { action: `addCode-${list}`, saved: true };
+	},
+	withdrawReport: async (event) => {
+		const actor = actorOf(guardPage(event));
+		const fd = await event.request.formData();
+		try {
+			await withdrawReport(actor, event.params.id, String(fd.get('reportId') ?? ''));
+		} catch (e) {
+			return failFrom(e, valuesOf(fd), 'withdrawReport');
+		}
+		return { action: 'withdrawReport', saved: true };
 	}
 };
