@@ -10,7 +10,8 @@
  * the commit.
  */
 import type { Transaction } from 'sequelize';
-import { evaluateReading, meterFor, sameResult, type CheckSpec, type TemperatureSnapshot } from '../../flow/reading';
+import { bandsFor, evaluateReading, meterFor, sameResult, type CheckSpec, type TemperatureSnapshot } from '../../flow/reading';
+import { rangeResolves } from '../../flow/decisions';
 import { readingCreate, signoffCreate, sparkTestCreate, swapTestCreate } from '../../schemas/records';
 import type { Op, PushResult, Reason } from '../../sync/protocol';
 import { stringifyNumbers } from '../../sync/json';
@@ -53,7 +54,7 @@ const BASE = ['workshop_id', 'id', 'op_id', 'created_by', 'device_id', 'device_t
  * building a 15-key object by spreading another costs more than the rest of a reading.
  */
 const COLUMNS: Record<AppendTable, readonly string[]> = {
-	readings: [...BASE, 'check_key', 'position', 'samples', 'range_label', 'device_result', 'server_result', 'mismatch'],
+	readings: [...BASE, 'check_key', 'position', 'samples', 'range_label', 'device_result', 'server_result', 'mismatch', 'server_verdict', 'range_unresolved'],
 	signoffs: [...BASE, 'mode', 'note'],
 	spark_tests: [...BASE, 'note', 'position', 'gap_mm', 'outcome'],
 	swap_tests: [...BASE, 'note', 'from_position', 'to_position', 'before_counts', 'after_counts', 'conclusion']
@@ -145,14 +146,17 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 			const check = checks?.find((c) => c.key === f.checkKey);
 			if (checks && !check) return reject(op, 'invalid', `checkKey: no check ${f.checkKey} on the pinned sheet`);
 			const spec = check ?? { key: f.checkKey as string, quantity: 'resistance', unit: 'Ω', openOk: false, bands: [] };
-			const server = evaluateReading(spec, f.samples as never, meterOf(test, (f.rangeLabel as string | null | undefined) ?? null), test.tempSnap);
+			const meter = meterOf(test, (f.rangeLabel as string | null | undefined) ?? null);
+			const server = evaluateReading(spec, f.samples as never, meter, test.tempSnap);
 			const device = f.deviceResult as { value: number | null; verdict: string } | null | undefined;
 			const mismatch = device != null && !sameResult(device as never, server);
+			// Whether the range could tell a reading from the limits (unknown with no pinned sheet).
+			const unresolved = check ? (rangeResolves(meter, bandsFor(check.bands, test.tempSnap)) ? 0 : 1) : null;
 			const samples = JSON.stringify(f.samples);
 			const prepared: Prepared = {
 				op,
 				table: 'readings',
-				row: row(test.job_id, test.id, f.checkKey, f.position ?? null, samples, f.rangeLabel ?? null, device ? toJson(device) : null, toJson(server), mismatch ? 1 : 0),
+				row: row(test.job_id, test.id, f.checkKey, f.position ?? null, samples, f.rangeLabel ?? null, device ? toJson(device) : null, toJson(server), mismatch ? 1 : 0, server.verdict, unresolved),
 				same: `${f.checkKey}|${samples}`
 			};
 			if (mismatch) prepared.mismatch = { device: String(device!.verdict), server: server.verdict };
