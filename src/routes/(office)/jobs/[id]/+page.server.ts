@@ -6,6 +6,7 @@ import { actorOf } from '$lib/server/auth/types';
 import { NotFoundError } from '$lib/server/errors';
 import { baseVersionOf, failFrom, valuesOf } from '$lib/server/forms';
 import * as jobs from '$lib/server/services/jobs';
+import { jobTests } from '$lib/server/services/test-display';
 import { jobFormOptions } from '../../options.server';
 
 const listOf = (fd: FormData): CodeList => (fd.get('list') === 'after' ? 'after' : 'before');
@@ -19,10 +20,12 @@ export async function load(event) {
 		if (e instanceof NotFoundError) error(404, 'No such job, or it is not assigned to you');
 		throw e;
 	});
+	const [history, tests] = await Promise.all([jobs.statusHistory(actor, id), jobTests(actor, id)]);
 	return {
 		title: `Job ${job.number}`,
 		job,
-		history: await jobs.statusHistory(actor, id),
+		history,
+		tests,
 		next: NEXT_STATUS[job.status],
 		mayClose: user.role !== 'apprentice',
 		...(await jobFormOptions(actor, job))
