@@ -24,7 +24,7 @@ const UP = [
 	`ALTER TABLE tests
 		ADD COLUMN meter_name VARCHAR(60) AS (LEFT(JSON_VALUE(meter, '$.name'), 60)) PERSISTENT,
 		ADD COLUMN lead_ohms DOUBLE AS (JSON_VALUE(meter, '$.leadResistance')) PERSISTENT,
-		ADD COLUMN relative_mode TINYINT(1) AS (IF(JSON_VALUE(meter, '$.relativeMode') = 'true', 1, 0)) PERSISTENT`,
+		ADD COLUMN relative_mode TINYINT(1) AS (IF(JSON_VALUE(meter, '$.relativeMode') IN ('true', '1'), 1, 0)) PERSISTENT`,
 	'CREATE INDEX tests_workshop_created ON tests (workshop_id, created_at)',
 	'ALTER TABLE conflicts ADD COLUMN settled_note VARCHAR(500) NULL AFTER settled_value'
 ];
