@@ -19,7 +19,7 @@ import { beforeAll, describe, expect, inject, it } from 'vitest';
 import { parseCsv } from '../../src/lib/csv';
 import { db } from '../../src/lib/server/db';
 import { jobs } from '../../src/lib/server/services/jobs';
-import { fillRangeUnresolved } from '../../migrations/2026-12-02T04-00-lead-desk';
+import { fillRangeUnresolved, fillTestSummaries } from '../../migrations/2026-12-02T04-00-lead-desk';
 import { deskWorkshop, meter } from '../helpers/desk';
 import { create, op, push } from '../helpers/sync';
 
@@ -146,6 +146,23 @@ describe('the overview', () => {
 		await db().query('UPDATE readings SET range_unresolved = NULL WHERE workshop_id = ?', { replacements: [w.workshop.id], type: QueryTypes.UPDATE });
 		expect(await fillRangeUnresolved(db(), 3)).toBeGreaterThanOrEqual(8);
 		expect(await flags()).toEqual(stored);
+	});
+
+	it('keeps one summary per test that adds up its readings as they arrive, the same as summarising them afresh (migration)', async () => {
+		const summaries = () =>
+			db().query<Record<string, unknown>>(
+				'SELECT test_id, readings, out_of_spec, cant_tell, ok, unresolved, range_known FROM test_summaries WHERE workshop_id = ? ORDER BY test_id',
+				{ replacements: [w.workshop.id], type: QueryTypes.SELECT }
+			);
+		const kept = await summaries();
+		// Seven tests, six of them read: 2 + 2 + 1 + 1 + 1 (T7) + 1 (T3) readings, one per reading's verdict.
+		expect(kept).toHaveLength(6);
+		expect(kept.reduce((n, r) => n + Number(r.readings), 0)).toBe(8);
+		expect(kept.reduce((n, r) => n + Number(r.out_of_spec), 0)).toBe(2);
+		const ids = kept.map((r) => String(r.test_id));
+		await db().query('DELETE FROM test_summaries WHERE test_id IN (?)', { replacements: [ids], type: QueryTypes.DELETE });
+		await fillTestSummaries(db(), ids);
+		expect(await summaries()).toEqual(kept);
 	});
 
 	it('refuses a wrong query with the field named, and the overview to anyone but leads and owners', async () => {

@@ -2,10 +2,12 @@
  * The lead's overview (leads and owners): two grouped queries over the tests that reached
  * the workshop in a date range, then the pure tables of `src/lib/overview/tables.ts`.
  *
- * 1. Per test (index `tests_workshop_created`), its readings' worst verdict and range flags
- *    from the covering index `readings_test_summary` — the reading rows themselves are never
- *    read — then grouped by part number, person, state and meter: a few hundred rows at most.
- * 2. The lead zero of the tests that subtracted their leads, per meter and period.
+ * 1. The tests in the range, read from the covering index `tests_overview`, each joined to
+ *    its one row in `test_summaries` (its readings' verdicts and range flags, kept up to date
+ *    by the sync path) — the readings themselves are never read — grouped by part number,
+ *    person, state and meter: a few hundred rows at most.
+ * 2. The lead zero of the tests that subtracted their leads, per meter and period, from the
+ *    same index.
  * Abandoned and deleted tests are left out. Filters and sorts apply to the grouped rows, so
  * they cost nothing in the database. `npm run bench:overview` times this on 200,000 readings.
  */
@@ -19,24 +21,16 @@ import { ValidationError } from '../errors';
 
 /** The SQL of both queries (kept here so the benchmark can EXPLAIN exactly these). */
 export const OVERVIEW_SQL = {
-	groups: `SELECT x.part_number, x.technician_id, x.state, x.meter_name,
-		COUNT(*) AS tests, SUM(x.bad) AS out_of_spec, SUM(x.bad = 0 AND x.unsure = 1) AS cant_tell,
-		SUM(x.bad = 0 AND x.unsure = 0 AND x.good = 1) AS ok, SUM(x.readings) AS readings,
-		SUM(x.unresolved) AS unresolved, SUM(x.known) AS range_known, SUM(x.relative_mode) AS relative
-	FROM (
-		SELECT t.id, t.part_number, t.technician_id, t.state, t.meter_name, t.relative_mode,
-			COUNT(r.test_id) AS readings,
-			COALESCE(MAX(r.server_verdict IN ('low', 'high')), 0) AS bad,
-			COALESCE(MAX(r.server_verdict IN ('borderline', 'depends')), 0) AS unsure,
-			COALESCE(MAX(r.server_verdict = 'within'), 0) AS good,
-			COALESCE(SUM(r.range_unresolved), 0) AS unresolved,
-			COUNT(r.range_unresolved) AS known
-		FROM tests t LEFT JOIN readings r ON r.test_id = t.id
-		WHERE t.workshop_id = ? AND t.created_at >= ? AND t.created_at < ?
-			AND t.deleted_at IS NULL AND t.state <> 'abandoned'
-		GROUP BY t.id
-	) x
-	GROUP BY x.part_number, x.technician_id, x.state, x.meter_name`,
+	groups: `SELECT t.part_number, t.technician_id, t.state, t.meter_name, COUNT(*) AS tests,
+		SUM(s.out_of_spec > 0) AS out_of_spec,
+		SUM(COALESCE(s.out_of_spec, 0) = 0 AND s.cant_tell > 0) AS cant_tell,
+		SUM(COALESCE(s.out_of_spec, 0) = 0 AND COALESCE(s.cant_tell, 0) = 0 AND s.ok > 0) AS ok,
+		SUM(s.readings) AS readings, SUM(s.unresolved) AS unresolved, SUM(s.range_known) AS range_known,
+		SUM(t.relative_mode) AS relative
+	FROM tests t LEFT JOIN test_summaries s ON s.test_id = t.id
+	WHERE t.workshop_id = ? AND t.created_at >= ? AND t.created_at < ?
+		AND t.deleted_at IS NULL AND t.state <> 'abandoned'
+	GROUP BY t.part_number, t.technician_id, t.state, t.meter_name`,
 	leadZero: (bucket: Bucket) => `SELECT t.meter_name, ${PERIOD[bucket]} AS period, COUNT(*) AS tests,
 		AVG(t.lead_ohms) AS avg_ohms, MIN(t.lead_ohms) AS min_ohms, MAX(t.lead_ohms) AS max_ohms
 	FROM tests t
