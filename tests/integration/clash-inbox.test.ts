@@ -125,6 +125,16 @@ describe('the clash inbox', () => {
 		expect(resent[0]).toMatchObject({ version: job!.version, record: { complaint: 'Stalls at junctions' } });
 	});
 
+	it('tells a phone which of its clashes still wait, so it can drop the settled ones', async () => {
+		const { conflictId } = await clash('location', 'Bay 6', 'Bay 7');
+		const ask = async (c = w.as.technician, ids = conflictId) => (await (await c.get(`/api/conflicts/open?ids=${ids}`)).json()).open;
+		expect(await ask()).toEqual([conflictId]);
+		expect(await ask(other.as.technician)).toEqual([]);
+		expect((await w.as.technician.get('/api/conflicts/open?ids=nope')).status).toBe(400);
+		await w.as.lead.json('POST', `/api/conflicts/${conflictId}`, { pick: 'server' });
+		expect(await ask()).toEqual([]);
+	});
+
 	it('refuses another workshop’s lead and a technician', async () => {
 		const { conflictId } = await clash('location', 'Bay 4', 'Bay 5');
 		expect((await other.as.lead.json('POST', `/api/conflicts/${conflictId}`, { pick: 'server' })).status).toBe(404);

@@ -94,7 +94,7 @@ describe('tests on the job', () => {
 		expect(html).toContain(`Job ${jobNumber}`);
 		expect(html).toContain(`id="test-${testId}"`);
 		expect(html).toContain('spec sheet version 1');
-		expect(html).toContain('Judged against the Cold spec · below 50 °C');
+		expect(html).toContain('Judged against: Cold spec · below 50 °C');
 		expect(html).toContain('Workshop’s check');
 		expect(html).toContain('They differ: the workshop’s result is kept.');
 		expect(html).toContain('data-odd="yes"');

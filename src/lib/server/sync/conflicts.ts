@@ -39,6 +39,16 @@ export async function listOpen(actor: Actor) {
 	return rows.map((r) => ({ ...toConflict(r), createdAt: r.created_at }));
 }
 
+/** Which of `ids` are open clashes of the actor's workshop. */
+export async function stillOpen(actor: Actor, ids: string[]): Promise<string[]> {
+	if (!ids.length) return [];
+	const rows = await db().query<{ id: string }>(
+		"SELECT id FROM conflicts WHERE workshop_id = ? AND status = 'open' AND id IN (?)",
+		{ replacements: [actor.workshopId, ids], type: QueryTypes.SELECT }
+	);
+	return rows.map((r) => r.id);
+}
+
 /** How many clashes wait for the lead (for the navigation's count). */
 export async function countOpen(actor: Actor): Promise<number> {
 	const [row] = await db().query<{ n: number | bigint }>(
