@@ -64,6 +64,8 @@ describe('a clash settled at the desk', () => {
 		}
 		await syncNow(one.page);
 		await syncNow(two.page);
+		// A sync already running in the background may have sent it: read the list afresh.
+		await two.page.goto(`${base}/field/sync`);
 		await expect.poll(() => two.page.getByTestId('issues').textContent()).toContain('two edits clash');
 		await shot(two.page, 'lead-desk-1-phone-clash');
 	});
