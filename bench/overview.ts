@@ -26,9 +26,21 @@ import mariadb from 'mariadb';
 import { QueryTypes } from 'sequelize';
 import { v7 as uuidv7 } from 'uuid';
 import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../scripts/lib/app';
-import { dbEnv, dropDatabase, ensureDatabase, startServer, stopServer } from '../scripts/lib/mariadb';
+import {
+	dbEnv,
+	dropDatabase,
+	ensureDatabase,
+	startServer,
+	stopServer
+} from '../scripts/lib/mariadb';
 import { Client } from '../tests/helpers/http';
-import { evaluateReading, meterFor, rangeUnresolvedOf, type CheckSpec, type TemperatureSnapshot } from '../src/lib/flow/reading';
+import {
+	evaluateReading,
+	meterFor,
+	rangeUnresolvedOf,
+	type CheckSpec,
+	type TemperatureSnapshot
+} from '../src/lib/flow/reading';
 import { stringifyNumbers } from '../src/lib/sync/json';
 
 const DB_NAME = 'fieldbench_bench_overview';
@@ -42,10 +54,31 @@ const POSITIONS = ['1', '2', '3', '4'];
 
 /** Invented coil figures: a two-band primary and a secondary winding (base units). */
 const CHECKS = [
-	{ key: 'primary', label: 'Primary winding', quantity: 'resistance', from: '1', to: '2', condition: 'key_off', unit: 'Ω', openOk: false,
-		bands: [{ fromC: null, toC: 50, min: 0.4, max: 0.6 }, { fromC: 50, toC: null, min: 0.5, max: 0.7 }] },
-	{ key: 'secondary', label: 'Secondary winding', quantity: 'resistance', from: '1', to: 'HT', condition: 'key_off', unit: 'kΩ', openOk: false,
-		bands: [{ fromC: null, toC: null, min: 5000, max: 8000 }] }
+	{
+		key: 'primary',
+		label: 'Primary winding',
+		quantity: 'resistance',
+		from: '1',
+		to: '2',
+		condition: 'key_off',
+		unit: 'Ω',
+		openOk: false,
+		bands: [
+			{ fromC: null, toC: 50, min: 0.4, max: 0.6 },
+			{ fromC: 50, toC: null, min: 0.5, max: 0.7 }
+		]
+	},
+	{
+		key: 'secondary',
+		label: 'Secondary winding',
+		quantity: 'resistance',
+		from: '1',
+		to: 'HT',
+		condition: 'key_off',
+		unit: 'kΩ',
+		openOk: false,
+		bands: [{ fromC: null, toC: null, min: 5000, max: 8000 }]
+	}
 ];
 /** Invented meters: names, a fine and a coarse range, a lead zero that creeps up over time. */
 const METERS = Array.from({ length: 8 }, (_, i) => ({
@@ -67,7 +100,8 @@ function prng(seed: number) {
 		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
 	};
 }
-const pct = (sorted: number[], p: number) => sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)];
+const pct = (sorted: number[], p: number) =>
+	sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)];
 const ms = (n: number) => n.toFixed(1);
 const sqlTime = (t: number) => new Date(t).toISOString().slice(0, 23).replace('T', ' ');
 const day = (t: number) => new Date(t).toISOString().slice(0, 10);
@@ -90,10 +124,18 @@ async function main() {
 		const { createUser, createWorkshop } = await import('../src/lib/server/services/workshops');
 		const { jobs } = await import('../src/lib/server/services/jobs');
 		const { components, sheets } = await import('../src/lib/server/services/components');
-		const { readOverview, parseOverviewQuery, OVERVIEW_SQL, boundsOf } = await import('../src/lib/server/services/overview');
+		const { readOverview, parseOverviewQuery, OVERVIEW_SQL, boundsOf } =
+			await import('../src/lib/server/services/overview');
 		const { bucketFor } = await import('../src/lib/overview/tables');
 
-		const pool = mariadb.createPool({ host: env.DB_HOST, port: Number(env.DB_PORT), user: env.DB_USER, password: env.DB_PASSWORD, database: env.DB_NAME, connectionLimit: 2 });
+		const pool = mariadb.createPool({
+			host: env.DB_HOST,
+			port: Number(env.DB_PORT),
+			user: env.DB_USER,
+			password: env.DB_PASSWORD,
+			database: env.DB_NAME,
+			connectionLimit: 2
+		});
 		const now = Date.now();
 		const span = YEARS * 365 * 86_400_000;
 
@@ -103,21 +145,53 @@ async function main() {
 			const w = await createWorkshop(`${label} (invented)`);
 			const tag = uuidv7().slice(-8);
 			const mk = (role: string, i: number) =>
-				createUser(w.id, { email: `${role}${i}-${tag}@bench.example`, name: `${role === 'apprentice' ? 'Apprentice' : role === 'lead' ? 'Lead' : 'Technician'} ${i}`, role, password: PASSWORD });
+				createUser(w.id, {
+					email: `${role}${i}-${tag}@bench.example`,
+					name: `${role === 'apprentice' ? 'Apprentice' : role === 'lead' ? 'Lead' : 'Technician'} ${i}`,
+					role,
+					password: PASSWORD
+				});
 			const lead = await mk('lead', 1);
-			const people = [...(await Promise.all([1, 2, 3, 4, 5, 6].map((i) => mk('technician', i)))), ...(await Promise.all([1, 2, 3].map((i) => mk('apprentice', i))))];
-			const actor = { userId: lead.id, workshopId: w.id, role: 'lead' as const, deviceId: 'bench-setup' };
+			const people = [
+				...(await Promise.all([1, 2, 3, 4, 5, 6].map((i) => mk('technician', i)))),
+				...(await Promise.all([1, 2, 3].map((i) => mk('apprentice', i))))
+			];
+			const actor = {
+				userId: lead.id,
+				workshopId: w.id,
+				role: 'lead' as const,
+				deviceId: 'bench-setup'
+			};
 			const parts: { id: string; sheetId: string; partNumber: string; failP: number }[] = [];
 			for (let i = 0; i < 12; i++) {
 				const partNumber = `LX-${String(1000 + i * 37)}-${tag.slice(-3)}`;
-				const componentId = (await components.create(actor, { partNumber, kind: 'ignition_coil' })).id as string;
+				const componentId = (await components.create(actor, { partNumber, kind: 'ignition_coil' }))
+					.id as string;
 				const draft = await sheets.create(actor, { componentId, checks: CHECKS });
-				await sheets.update(actor, draft.id as string, draft.version as number, {}, { serverFields: { state: 'approved', approvedBy: lead.id, approvedAt: new Date() } });
-				parts.push({ id: componentId, sheetId: draft.id as string, partNumber, failP: 0.02 + (i % 5) * 0.03 });
+				await sheets.update(
+					actor,
+					draft.id as string,
+					draft.version as number,
+					{},
+					{ serverFields: { state: 'approved', approvedBy: lead.id, approvedAt: new Date() } }
+				);
+				parts.push({
+					id: componentId,
+					sheetId: draft.id as string,
+					partNumber,
+					failP: 0.02 + (i % 5) * 0.03
+				});
 			}
 			const jobIds: string[] = [];
 			for (let i = 0; i < 120; i++) {
-				jobIds.push((await jobs.create(actor, { complaint: `Misfire (bench job ${i + 1})`, assigneeId: people[i % people.length].id })).id as string);
+				jobIds.push(
+					(
+						await jobs.create(actor, {
+							complaint: `Misfire (bench job ${i + 1})`,
+							assigneeId: people[i % people.length].id
+						})
+					).id as string
+				);
 			}
 			const rnd = prng(seed);
 			const testCount = Math.ceil(readings / PER_TEST);
@@ -135,14 +209,45 @@ async function main() {
 					const person = people[Math.floor(rnd() * people.length)];
 					const m = METERS[(people.indexOf(person) + (rnd() < 0.2 ? 1 : 0)) % METERS.length];
 					const years = (at - (now - span)) / (365 * 86_400_000);
-					const lead0 = m.relative ? 0 : Math.round((m.lead0 + m.drift * years + (rnd() - 0.5) * 0.02) * 1000) / 1000;
-					const meter = { name: m.name, ranges: m.ranges, leadResistance: Math.max(0, lead0), relativeMode: m.relative };
-					const temperature: TemperatureSnapshot = rnd() < 0.8 ? { mode: 'measured', tempC: Math.round(5 + rnd() * 85) } : { mode: 'overnight' };
+					const lead0 = m.relative
+						? 0
+						: Math.round((m.lead0 + m.drift * years + (rnd() - 0.5) * 0.02) * 1000) / 1000;
+					const meter = {
+						name: m.name,
+						ranges: m.ranges,
+						leadResistance: Math.max(0, lead0),
+						relativeMode: m.relative
+					};
+					const temperature: TemperatureSnapshot =
+						rnd() < 0.8
+							? { mode: 'measured', tempC: Math.round(5 + rnd() * 85) }
+							: { mode: 'overnight' };
 					const state = rnd() < 0.02 ? 'abandoned' : rnd() < 0.92 ? 'done' : 'in_progress';
 					if (state === 'abandoned') abandoned++;
 					const testId = uuidv7();
 					const jobId = jobIds[Math.floor(rnd() * jobIds.length)];
-					testRows.push([testId, w.id, jobId, part.id, part.sheetId, 1, part.partNumber, POSITIONS.join(','), person.id, JSON.stringify(meter), JSON.stringify(temperature), state, 1, '{}', person.id, person.id, 'bench-device', sqlTime(at), sqlTime(at), sqlTime(at)]);
+					testRows.push([
+						testId,
+						w.id,
+						jobId,
+						part.id,
+						part.sheetId,
+						1,
+						part.partNumber,
+						POSITIONS.join(','),
+						person.id,
+						JSON.stringify(meter),
+						JSON.stringify(temperature),
+						state,
+						1,
+						'{}',
+						person.id,
+						person.id,
+						'bench-device',
+						sqlTime(at),
+						sqlTime(at),
+						sqlTime(at)
+					]);
 					const faulty = rnd() < part.failP ? POSITIONS[Math.floor(rnd() * 4)] : null;
 					const sum = [0, 0, 0, 0, 0, 0];
 					for (const position of POSITIONS) {
@@ -153,19 +258,45 @@ async function main() {
 							const bad = faulty === position ? (primary ? 0.35 : 3000) : 0;
 							const value = nominal + bad + (rnd() - 0.5) * (primary ? 0.16 : 2600);
 							const rangeLabel = primary ? (rnd() < 0.05 ? '20 kΩ' : '200 Ω') : '20 kΩ';
-							const samples = primary ? [{ value: Math.round(value * 1000) / 1000, unit: 'Ω' }] : [{ value: Math.round(value) / 1000, unit: 'kΩ' }];
+							const samples = primary
+								? [{ value: Math.round(value * 1000) / 1000, unit: 'Ω' }]
+								: [{ value: Math.round(value) / 1000, unit: 'kΩ' }];
 							const snapshot = meterFor(meter, rangeLabel);
 							const server = evaluateReading(check, samples, snapshot, temperature);
 							const unresolved = rangeUnresolvedOf(check, meter, rangeLabel, temperature) ? 1 : 0;
 							const when = at + 60_000 * (readingRows.length % 8);
-							const device = stringifyNumbers({ value: server.value === Infinity ? null : server.value, verdict: server.verdict, ol: server.value === Infinity });
+							const device = stringifyNumbers({
+								value: server.value === Infinity ? null : server.value,
+								verdict: server.verdict,
+								ol: server.value === Infinity
+							});
 							sum[0]++;
 							if (server.verdict === 'low' || server.verdict === 'high') sum[1]++;
 							else if (server.verdict === 'borderline' || server.verdict === 'depends') sum[2]++;
 							else if (server.verdict === 'within') sum[3]++;
 							sum[4] += unresolved;
 							sum[5]++;
-							readingRows.push([++seq, w.id, uuidv7(), uuidv7(), person.id, 'bench-device', sqlTime(when), jobId, testId, check.key, position, JSON.stringify(samples), rangeLabel, device, stringifyNumbers(server), server.verdict, unresolved, 0, sqlTime(when)]);
+							readingRows.push([
+								++seq,
+								w.id,
+								uuidv7(),
+								uuidv7(),
+								person.id,
+								'bench-device',
+								sqlTime(when),
+								jobId,
+								testId,
+								check.key,
+								position,
+								JSON.stringify(samples),
+								rangeLabel,
+								device,
+								stringifyNumbers(server),
+								server.verdict,
+								unresolved,
+								0,
+								sqlTime(when)
+							]);
 							stored++;
 						}
 					}
@@ -193,9 +324,14 @@ async function main() {
 					await conn.release();
 				}
 			}
-			await pool.query('UPDATE change_counters SET last_seq = GREATEST(last_seq, ?) WHERE workshop_id = ?', [seq, w.id]);
+			await pool.query(
+				'UPDATE change_counters SET last_seq = GREATEST(last_seq, ?) WHERE workshop_id = ?',
+				[seq, w.id]
+			);
 			const seconds = (performance.now() - t0) / 1000;
-			console.log(`${label}: ${stored.toLocaleString('en-GB')} readings in ${testCount.toLocaleString('en-GB')} tests over ${YEARS} years, seeded in ${seconds.toFixed(0)} s`);
+			console.log(
+				`${label}: ${stored.toLocaleString('en-GB')} readings in ${testCount.toLocaleString('en-GB')} tests over ${YEARS} years, seeded in ${seconds.toFixed(0)} s`
+			);
 			return { id: w.id, lead, stored, tests: testCount, abandoned };
 		}
 
@@ -205,24 +341,47 @@ async function main() {
 
 		// 3. Counts.
 		const actor = { userId: main.lead.id, workshopId: main.id, role: 'lead' as const };
-		const [{ n }] = await dbMod.db().query<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE workshop_id = ?', { replacements: [main.id], type: QueryTypes.SELECT });
-		const all = await readOverview(actor, parseOverviewQuery({ from: day(now - span - 86_400_000) }));
+		const [{ n }] = await dbMod
+			.db()
+			.query<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE workshop_id = ?', {
+				replacements: [main.id],
+				type: QueryTypes.SELECT
+			});
+		const all = await readOverview(
+			actor,
+			parseOverviewQuery({ from: day(now - span - 86_400_000) })
+		);
 		const counted = all.parts.reduce((s, p) => s + p.tests, 0);
-		const [{ r }] = await dbMod.db().query<{ r: number }>('SELECT SUM(readings) AS r FROM test_summaries WHERE workshop_id = ?', { replacements: [main.id], type: QueryTypes.SELECT });
+		const [{ r }] = await dbMod
+			.db()
+			.query<{ r: number }>('SELECT SUM(readings) AS r FROM test_summaries WHERE workshop_id = ?', {
+				replacements: [main.id],
+				type: QueryTypes.SELECT
+			});
 		const checks = [
 			{ what: 'readings stored', got: Number(n), want: READINGS },
 			{ what: 'readings in the test summaries', got: Number(r), want: READINGS },
-			{ what: 'tests counted over all the years (abandoned left out)', got: counted, want: main.tests - main.abandoned }
+			{
+				what: 'tests counted over all the years (abandoned left out)',
+				got: counted,
+				want: main.tests - main.abandoned
+			}
 		];
 		for (const c of checks) {
 			const ok = c.got === c.want;
 			failed ||= !ok;
-			console.log(`${ok ? 'ok  ' : 'FAIL'} ${c.what}: ${c.got.toLocaleString('en-GB')}${ok ? '' : ` (expected ${c.want.toLocaleString('en-GB')})`}`);
+			console.log(
+				`${ok ? 'ok  ' : 'FAIL'} ${c.what}: ${c.got.toLocaleString('en-GB')}${ok ? '' : ` (expected ${c.want.toLocaleString('en-GB')})`}`
+			);
 		}
 
 		// 4. Timings.
 		buildIfNeeded();
-		const served = await serve(await freePort(4700), { ...env, ADDRESS_HEADER: 'x-forwarded-for' }, 'ignore');
+		const served = await serve(
+			await freePort(4700),
+			{ ...env, ADDRESS_HEADER: 'x-forwarded-for' },
+			'ignore'
+		);
 		app = served.child;
 		const lead = new Client(served.url, '10.99.0.1');
 		const signIn = await lead.signIn(main.lead.email, PASSWORD);
@@ -233,10 +392,17 @@ async function main() {
 			{ label: 'last 90 days (the page’s default)', qs: '' },
 			{ label: 'last 12 months', qs: `from=${back(364)}&to=${today}` },
 			{ label: `all ${YEARS} years`, qs: `from=${back(YEARS * 365 + 1)}&to=${today}` },
-			{ label: `all ${YEARS} years, filtered and sorted`, qs: `from=${back(YEARS * 365 + 1)}&to=${today}&part=LX-1&partsSort=-failRate&role=apprentice&metersSort=-leadLatest` }
+			{
+				label: `all ${YEARS} years, filtered and sorted`,
+				qs: `from=${back(YEARS * 365 + 1)}&to=${today}&part=LX-1&partsSort=-failRate&role=apprentice&metersSort=-leadLatest`
+			}
 		];
 		console.log(`\nOverview server time, ${RUNS} runs each after 3 warm-up runs (ms):`);
-		console.log('range'.padEnd(44) + 'in process p50 / p95 / max'.padEnd(30) + 'GET /api/overview p50 / p95 / max');
+		console.log(
+			'range'.padEnd(44) +
+				'in process p50 / p95 / max'.padEnd(30) +
+				'GET /api/overview p50 / p95 / max'
+		);
 		const results: { label: string; inProcess: number[]; http: number[] }[] = [];
 		for (const r of ranges) {
 			const q = parseOverviewQuery(Object.fromEntries(new URLSearchParams(r.qs)));
@@ -262,23 +428,46 @@ async function main() {
 			console.log(r.label.padEnd(44) + f(inProcess).padEnd(30) + f(http));
 		}
 		const worst = Math.max(...results.map((r) => pct(r.http, 95)));
-		console.log(`\nGoal: p95 under ${GOAL_MS} ms through the API — ${worst < GOAL_MS ? 'met' : 'NOT met'} (worst p95 ${ms(worst)} ms).`);
+		console.log(
+			`\nGoal: p95 under ${GOAL_MS} ms through the API — ${worst < GOAL_MS ? 'met' : 'NOT met'} (worst p95 ${ms(worst)} ms).`
+		);
 
 		// 5. Query plans.
-		for (const [label, from] of [['the default 90 days', back(89)], [`all ${YEARS} years`, back(YEARS * 365 + 1)]] as const) {
+		for (const [label, from] of [
+			['the default 90 days', back(89)],
+			[`all ${YEARS} years`, back(YEARS * 365 + 1)]
+		] as const) {
 			const { start, end } = boundsOf({ from, to: today });
 			console.log(`\nEXPLAIN, ${label}:`);
-			for (const [name, sql] of [['per-test groups', OVERVIEW_SQL.groups], ['lead zero', OVERVIEW_SQL.leadZero(bucketFor(from, today))]] as const) {
+			for (const [name, sql] of [
+				['per-test groups', OVERVIEW_SQL.groups],
+				['lead zero', OVERVIEW_SQL.leadZero(bucketFor(from, today))]
+			] as const) {
 				const rows = await pool.query(`EXPLAIN ${sql}`, [main.id, start, end]);
 				console.log(`  ${name}:`);
-				console.log('  ' + ['id', 'select_type', 'table', 'type', 'key', 'key_len', 'ref', 'rows', 'Extra'].join(' | '));
+				console.log(
+					'  ' +
+						['id', 'select_type', 'table', 'type', 'key', 'key_len', 'ref', 'rows', 'Extra'].join(
+							' | '
+						)
+				);
 				for (const p of rows as Record<string, unknown>[])
-					console.log('  ' + [p.id, p.select_type, p.table, p.type, p.key, p.key_len, p.ref, p.rows, p.Extra].map((v) => (v == null ? '' : String(v))).join(' | '));
+					console.log(
+						'  ' +
+							[p.id, p.select_type, p.table, p.type, p.key, p.key_len, p.ref, p.rows, p.Extra]
+								.map((v) => (v == null ? '' : String(v)))
+								.join(' | ')
+					);
 			}
 		}
 		const [{ version }] = await pool.query('SELECT VERSION() AS version');
 		const cpus = os.cpus();
-		console.log(`\n${new Date().toISOString().slice(0, 10)} · ${cpus.length} × ${cpus[0]?.model ?? 'CPU'} · ${(os.totalmem() / 2 ** 30).toFixed(1)} GiB · Node ${process.versions.node} · MariaDB ${version} · ${side.stored.toLocaleString('en-GB')} readings in the other workshop · load average ${os.loadavg().map((l) => l.toFixed(1)).join(' ')}`);
+		console.log(
+			`\n${new Date().toISOString().slice(0, 10)} · ${cpus.length} × ${cpus[0]?.model ?? 'CPU'} · ${(os.totalmem() / 2 ** 30).toFixed(1)} GiB · Node ${process.versions.node} · MariaDB ${version} · ${side.stored.toLocaleString('en-GB')} readings in the other workshop · load average ${os
+				.loadavg()
+				.map((l) => l.toFixed(1))
+				.join(' ')}`
+		);
 		await pool.end();
 	} finally {
 		if (app) stopServe(app);

@@ -52,7 +52,14 @@ const DOWN = [
 	'ALTER TABLE readings DROP COLUMN range_unresolved, DROP COLUMN server_verdict'
 ];
 
-type Row = { id: string; range_label: string | null; check_key: string; meter: string | null; temperature: string | null; checks: string | null };
+type Row = {
+	id: string;
+	range_label: string | null;
+	check_key: string;
+	meter: string | null;
+	temperature: string | null;
+	checks: string | null;
+};
 
 /** Fill `range_unresolved` for readings stored before the column existed, in id order. */
 export async function fillRangeUnresolved(s: Sequelize, slice = 2000): Promise<number> {

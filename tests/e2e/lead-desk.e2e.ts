@@ -24,7 +24,9 @@ beforeAll(async () => {
 	[desk, one, two] = await Promise.all([openDesk(), openPhone(), openPhone()]);
 	for (const b of [desk, one, two]) b.page.setDefaultTimeout(20_000);
 	await signInAs(desk, base, 'lead@tallowbridge.example');
-	const r = await desk.page.request.post(`${base}/api/jobs`, { data: { complaint: `Cuts out on the motorway ${Date.now().toString(36)}`, assigneeId: TECH.id } });
+	const r = await desk.page.request.post(`${base}/api/jobs`, {
+		data: { complaint: `Cuts out on the motorway ${Date.now().toString(36)}`, assigneeId: TECH.id }
+	});
 	expect(r.status()).toBe(201);
 	({ id: jobId, number: jobNumber } = (await r.json()).job);
 	await Promise.all([signInAs(one, base, TECH.email), signInAs(two, base, TECH.email)]);
@@ -40,14 +42,17 @@ const syncNow = async (page: Page) => {
 	await page.goto(`${base}/field/sync`);
 	const button = page.getByRole('button', { name: /Sync now|Syncing/ });
 	await button.click();
-	await expect.poll(() => page.getByTestId('sync-badge').textContent(), { timeout: 20_000 }).not.toContain('waiting to send');
+	await expect
+		.poll(() => page.getByTestId('sync-badge').textContent(), { timeout: 20_000 })
+		.not.toContain('waiting to send');
 	await expect.poll(() => button.isEnabled(), { timeout: 20_000 }).toBe(true);
 };
 const openJob = async (page: Page) => {
 	await page.goto(`${base}/field/job/${jobId}`);
 	await page.getByTestId('complaint').waitFor();
 };
-const expectAccessible = async (page: Page, where: string) => expect(await axeViolations(page), where).toEqual([]);
+const expectAccessible = async (page: Page, where: string) =>
+	expect(await axeViolations(page), where).toEqual([]);
 
 describe('a clash settled at the desk', () => {
 	it('is made by two phones changing the job’s status offline', async () => {
@@ -59,14 +64,18 @@ describe('a clash settled at the desk', () => {
 		await one.page.getByLabel('Status').selectOption('awaiting_parts');
 		await two.page.getByLabel('Status').selectOption('no_fault_found');
 		for (const phone of [one, two]) {
-			await expect.poll(() => phone.page.getByTestId('sync-badge').textContent()).toContain('1 waiting to send');
+			await expect
+				.poll(() => phone.page.getByTestId('sync-badge').textContent())
+				.toContain('1 waiting to send');
 			await phone.context.setOffline(false);
 		}
 		await syncNow(one.page);
 		await syncNow(two.page);
 		// A sync already running in the background may have sent it: read the list afresh.
 		await two.page.goto(`${base}/field/sync`);
-		await expect.poll(() => two.page.getByTestId('issues').textContent()).toContain('two edits clash');
+		await expect
+			.poll(() => two.page.getByTestId('issues').textContent())
+			.toContain('two edits clash');
 		await shot(two.page, 'lead-desk-1-phone-clash');
 	});
 
@@ -78,7 +87,14 @@ describe('a clash settled at the desk', () => {
 		expect(await card.getByTestId('stored-value').textContent()).toBe('Awaiting parts');
 		expect(await card.getByTestId('phone-value').textContent()).toBe('No fault found');
 		expect(await card.textContent()).toContain(`${TECH.name} · phone`);
-		expect(Number(await page.getByTestId('clash-count').innerText().then((t) => t.replace(/\D/g, '')))).toBeGreaterThanOrEqual(1);
+		expect(
+			Number(
+				await page
+					.getByTestId('clash-count')
+					.innerText()
+					.then((t) => t.replace(/\D/g, ''))
+			)
+		).toBeGreaterThanOrEqual(1);
 		await expectAccessible(page, 'the inbox at desk size');
 		await shot(page, 'lead-desk-2-inbox');
 	});
@@ -89,9 +105,18 @@ describe('a clash settled at the desk', () => {
 		await card.getByLabel(/From .*No fault found/).check();
 		await card.getByLabel(/^Note/).fill('Road-tested 20 km with the customer: no cut-out');
 		await card.getByRole('button', { name: 'Settle this clash' }).click();
-		await expect.poll(() => page.getByTestId('settled-message').textContent()).toContain('is now “No fault found”');
-		expect(await page.getByTestId('clash').filter({ hasText: `Job ${jobNumber}` }).count()).toBe(0);
-		expect(await page.getByTestId('settled').textContent()).toContain('Road-tested 20 km with the customer');
+		await expect
+			.poll(() => page.getByTestId('settled-message').textContent())
+			.toContain('is now “No fault found”');
+		expect(
+			await page
+				.getByTestId('clash')
+				.filter({ hasText: `Job ${jobNumber}` })
+				.count()
+		).toBe(0);
+		expect(await page.getByTestId('settled').textContent()).toContain(
+			'Road-tested 20 km with the customer'
+		);
 		await shot(page, 'lead-desk-3-settled');
 	});
 
@@ -110,14 +135,56 @@ describe('a clash settled at the desk', () => {
 describe('the lead’s pages', () => {
 	it('show a synced test on the office job page and the phone, accessible at both sizes', async () => {
 		const t = uuidv7();
-		const reading = (position: string, value: number) => ({ opId: uuidv7(), entity: 'reading', entityId: uuidv7(), kind: 'create', baseVersion: 0, deviceTime: new Date().toISOString(), fields: { testId: t, checkKey: 'primary', position, samples: [{ value, unit: 'Ω' }], rangeLabel: '200 Ω', deviceResult: { value: value - 0.1, verdict: 'within' } } });
+		const reading = (position: string, value: number) => ({
+			opId: uuidv7(),
+			entity: 'reading',
+			entityId: uuidv7(),
+			kind: 'create',
+			baseVersion: 0,
+			deviceTime: new Date().toISOString(),
+			fields: {
+				testId: t,
+				checkKey: 'primary',
+				position,
+				samples: [{ value, unit: 'Ω' }],
+				rangeLabel: '200 Ω',
+				deviceResult: { value: value - 0.1, verdict: 'within' }
+			}
+		});
 		const ops = [
-			{ opId: uuidv7(), entity: 'test', entityId: t, kind: 'create', baseVersion: 0, deviceTime: new Date().toISOString(), fields: { jobId, componentId: COIL, sheetId: SHEET, partNumber: 'TB-IC-2041', position: '1,2', meter: { name: 'Bench meter', ranges: [{ label: '200 Ω', resolution: 0.01, pctOfReading: 0.5, counts: 2 }], leadResistance: 0.1, relativeMode: false }, temperature: { mode: 'measured', tempC: 18 } } },
+			{
+				opId: uuidv7(),
+				entity: 'test',
+				entityId: t,
+				kind: 'create',
+				baseVersion: 0,
+				deviceTime: new Date().toISOString(),
+				fields: {
+					jobId,
+					componentId: COIL,
+					sheetId: SHEET,
+					partNumber: 'TB-IC-2041',
+					position: '1,2',
+					meter: {
+						name: 'Bench meter',
+						ranges: [{ label: '200 Ω', resolution: 0.01, pctOfReading: 0.5, counts: 2 }],
+						leadResistance: 0.1,
+						relativeMode: false
+					},
+					temperature: { mode: 'measured', tempC: 18 }
+				}
+			},
 			reading('1', 0.6),
 			reading('2', 0.92) // 0.82 Ω, over the cold spec: the phone said OK, the workshop disagrees
 		];
-		const r = await one.page.request.post(`${base}/api/sync/push`, { data: { deviceId: uuidv7(), ops } });
-		expect((await r.json()).results.map((x: { status: string }) => x.status)).toEqual(['applied', 'applied', 'applied']);
+		const r = await one.page.request.post(`${base}/api/sync/push`, {
+			data: { deviceId: uuidv7(), ops }
+		});
+		expect((await r.json()).results.map((x: { status: string }) => x.status)).toEqual([
+			'applied',
+			'applied',
+			'applied'
+		]);
 
 		await desk.page.goto(`${base}/jobs/${jobId}`);
 		const detail = desk.page.getByTestId('test-detail');
@@ -142,7 +209,9 @@ describe('the lead’s pages', () => {
 		await shot(desk.page, 'lead-desk-7-overview');
 		await desk.page.setViewportSize({ width: 390, height: 844 });
 		await desk.page.reload();
-		expect(await desk.page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
+		expect(
+			await desk.page.evaluate(() => document.documentElement.scrollWidth)
+		).toBeLessThanOrEqual(390);
 		await expectAccessible(desk.page, 'the overview at phone size');
 		await shot(desk.page, 'lead-desk-8-overview-phone');
 		await desk.page.goto(`${base}/conflicts`);

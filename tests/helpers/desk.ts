@@ -48,10 +48,17 @@ export async function deskWorkshop(base: string, label: string) {
 	const ws = await makeWorkshop(label);
 	const lead = ws.users.lead.actor;
 	const partNumber = `${label.slice(0, 2).toUpperCase()}-${uuidv7().slice(-6)}`;
-	const componentId = (await components.create(lead, { partNumber, kind: 'ignition_coil' })).id as string;
+	const componentId = (await components.create(lead, { partNumber, kind: 'ignition_coil' }))
+		.id as string;
 	const draft = await sheets.create(lead, { componentId, checks: [PRIMARY] });
 	const sheetId = draft.id as string;
-	await sheets.update(lead, sheetId, draft.version as number, {}, { serverFields: { state: 'approved', approvedBy: lead.userId, approvedAt: new Date() } });
+	await sheets.update(
+		lead,
+		sheetId,
+		draft.version as number,
+		{},
+		{ serverFields: { state: 'approved', approvedBy: lead.userId, approvedAt: new Date() } }
+	);
 	const as = {
 		owner: await signedIn(base, ws.users.owner.email),
 		lead: await signedIn(base, ws.users.lead.email),

@@ -19,7 +19,10 @@ import { beforeAll, describe, expect, inject, it } from 'vitest';
 import { parseCsv } from '../../src/lib/csv';
 import { db } from '../../src/lib/server/db';
 import { jobs } from '../../src/lib/server/services/jobs';
-import { fillRangeUnresolved, fillTestSummaries } from '../../migrations/2026-12-02T04-00-lead-desk';
+import {
+	fillRangeUnresolved,
+	fillTestSummaries
+} from '../../migrations/2026-12-02T04-00-lead-desk';
 import { deskWorkshop, meter } from '../helpers/desk';
 import { create, op, push } from '../helpers/sync';
 
@@ -30,16 +33,34 @@ const PN_A = 'OV-A-100';
 const PN_B = 'OV-B-200';
 
 const reading = (testId: string, raw: number, rangeLabel = '200 Ω') =>
-	create('reading', { testId, checkKey: 'primary', position: '1', samples: [{ value: raw, unit: 'Ω' }], rangeLabel });
+	create('reading', {
+		testId,
+		checkKey: 'primary',
+		position: '1',
+		samples: [{ value: raw, unit: 'Ω' }],
+		rangeLabel
+	});
 
 beforeAll(async () => {
 	w = await deskWorkshop(base, 'Overview');
 	other = await deskWorkshop(base, 'Overview elsewhere');
 	const lead = w.users.lead.actor;
-	const techJob = (await jobs.create(lead, { complaint: 'Misfire under load', assigneeId: w.users.technician.id })).id as string;
-	const appJob = (await jobs.create(lead, { complaint: 'Rough idle', assigneeId: w.users.apprentice.id })).id as string;
+	const techJob = (
+		await jobs.create(lead, { complaint: 'Misfire under load', assigneeId: w.users.technician.id })
+	).id as string;
+	const appJob = (
+		await jobs.create(lead, { complaint: 'Rough idle', assigneeId: w.users.apprentice.id })
+	).id as string;
 	const test = (jobId: string, partNumber: string, m: object) =>
-		create('test', { jobId, componentId: w.componentId, sheetId: w.sheetId, partNumber, position: '1', meter: m, temperature: { mode: 'measured', tempC: 20 } });
+		create('test', {
+			jobId,
+			componentId: w.componentId,
+			sheetId: w.sheetId,
+			partNumber,
+			position: '1',
+			meter: m,
+			temperature: { mode: 'measured', tempC: 20 }
+		});
 	const [t1, t2, t5, t6, t7] = [
 		test(techJob, PN_A, meter('Meter One', 0.1)),
 		test(techJob, PN_A, meter('Meter One', 0.1)),
@@ -47,16 +68,53 @@ beforeAll(async () => {
 		test(techJob, PN_B, meter('Meter Two', 0, true)),
 		test(techJob, PN_A, meter('Meter One', 0.1))
 	];
-	const [t3, t4] = [test(appJob, PN_A, meter('Meter One', 0.1)), test(appJob, PN_B, meter('Meter Two', 0.2))];
-	const techOps = [t1, t2, t5, t6, t7, reading(t1.entityId, 0.55), reading(t1.entityId, 0.55), reading(t2.entityId, 0.55), reading(t2.entityId, 0.8), reading(t6.entityId, 0.45), reading(t7.entityId, 0.8)];
+	const [t3, t4] = [
+		test(appJob, PN_A, meter('Meter One', 0.1)),
+		test(appJob, PN_B, meter('Meter Two', 0.2))
+	];
+	const techOps = [
+		t1,
+		t2,
+		t5,
+		t6,
+		t7,
+		reading(t1.entityId, 0.55),
+		reading(t1.entityId, 0.55),
+		reading(t2.entityId, 0.55),
+		reading(t2.entityId, 0.8),
+		reading(t6.entityId, 0.45),
+		reading(t7.entityId, 0.8)
+	];
 	const done = (t: { entityId: string }) => op('test', 'patch', t.entityId, { state: 'done' }, 1);
-	expect((await push(w.as.technician, 'tech-phone', [...techOps, done(t1), done(t2)])).every((r) => r.status === 'applied')).toBe(true);
+	expect(
+		(await push(w.as.technician, 'tech-phone', [...techOps, done(t1), done(t2)])).every(
+			(r) => r.status === 'applied'
+		)
+	).toBe(true);
 	const appOps = [t3, t4, reading(t3.entityId, 0.65), reading(t4.entityId, 0.7, '20 kΩ'), done(t4)];
-	expect((await push(w.as.apprentice, 'apprentice-phone', appOps)).every((r) => r.status === 'applied')).toBe(true);
-	await db().query('UPDATE tests SET created_at = UTC_TIMESTAMP(3) - INTERVAL 200 DAY WHERE id = ?', { replacements: [t7.entityId], type: QueryTypes.UPDATE });
+	expect(
+		(await push(w.as.apprentice, 'apprentice-phone', appOps)).every((r) => r.status === 'applied')
+	).toBe(true);
+	await db().query(
+		'UPDATE tests SET created_at = UTC_TIMESTAMP(3) - INTERVAL 200 DAY WHERE id = ?',
+		{ replacements: [t7.entityId], type: QueryTypes.UPDATE }
+	);
 	// Another workshop's test of the same part number never counts here.
-	const theirJob = (await jobs.create(other.users.lead.actor, { complaint: 'Elsewhere', assigneeId: other.users.technician.id })).id as string;
-	const theirs = create('test', { jobId: theirJob, componentId: other.componentId, sheetId: other.sheetId, partNumber: PN_A, position: '1', meter: meter('Meter One'), temperature: { mode: 'measured', tempC: 20 } });
+	const theirJob = (
+		await jobs.create(other.users.lead.actor, {
+			complaint: 'Elsewhere',
+			assigneeId: other.users.technician.id
+		})
+	).id as string;
+	const theirs = create('test', {
+		jobId: theirJob,
+		componentId: other.componentId,
+		sheetId: other.sheetId,
+		partNumber: PN_A,
+		position: '1',
+		meter: meter('Meter One'),
+		temperature: { mode: 'measured', tempC: 20 }
+	});
 	await push(other.as.technician, 'their-phone', [theirs, reading(theirs.entityId, 0.8)]);
 });
 
@@ -73,15 +131,34 @@ describe('the overview', () => {
 		const a = o.parts.find((r: { partNumber: string }) => r.partNumber === PN_A);
 		const b = o.parts.find((r: { partNumber: string }) => r.partNumber === PN_B);
 		// A: T1 OK, T2 out of spec, T3 can't tell (T7 is older than 90 days).
-		expect(a).toEqual({ partNumber: PN_A, tests: 3, outOfSpec: 1, cantTell: 1, ok: 1, noResult: 0, failRate: 1 / 3 });
+		expect(a).toEqual({
+			partNumber: PN_A,
+			tests: 3,
+			outOfSpec: 1,
+			cantTell: 1,
+			ok: 1,
+			noResult: 0,
+			failRate: 1 / 3
+		});
 		// B: T4 can't tell, T5 not read, T6 OK.
-		expect(b).toEqual({ partNumber: PN_B, tests: 3, outOfSpec: 0, cantTell: 1, ok: 1, noResult: 1, failRate: 0 });
+		expect(b).toEqual({
+			partNumber: PN_B,
+			tests: 3,
+			outOfSpec: 0,
+			cantTell: 1,
+			ok: 1,
+			noResult: 1,
+			failRate: 0
+		});
 		expect(o.parts).toHaveLength(2); // the other workshop's test is not here
 	});
 
 	it('takes the date range from the URL', async () => {
 		const o = await overview('?from=2020-01-01');
-		expect(o.parts.find((r: { partNumber: string }) => r.partNumber === PN_A)).toMatchObject({ tests: 4, outOfSpec: 2 });
+		expect(o.parts.find((r: { partNumber: string }) => r.partNumber === PN_A)).toMatchObject({
+			tests: 4,
+			outOfSpec: 2
+		});
 		expect(o.bucket).toBe('month');
 		const none = await overview('?from=2020-01-01&to=2020-12-31');
 		expect(none.parts).toEqual([]);
@@ -91,10 +168,22 @@ describe('the overview', () => {
 		const o = await overview();
 		const one = o.meters.find((r: { meterName: string }) => r.meterName === 'Meter One');
 		const two = o.meters.find((r: { meterName: string }) => r.meterName === 'Meter Two');
-		expect(one).toMatchObject({ tests: 3, readings: 5, relativeTests: 0, unresolved: 0, unresolvedRate: 0 });
+		expect(one).toMatchObject({
+			tests: 3,
+			readings: 5,
+			relativeTests: 0,
+			unresolved: 0,
+			unresolvedRate: 0
+		});
 		expect(one.leadAvg).toBeCloseTo(0.1, 12);
 		// T4 (0.20 Ω, 20 kΩ range) and T5 (0.20 Ω, not read) subtract leads; T6 is relative mode.
-		expect(two).toMatchObject({ tests: 3, readings: 2, relativeTests: 1, unresolved: 1, unresolvedRate: 0.5 });
+		expect(two).toMatchObject({
+			tests: 3,
+			readings: 2,
+			relativeTests: 1,
+			unresolved: 1,
+			unresolvedRate: 0.5
+		});
 		expect(two.leadAvg).toBeCloseTo(0.2, 12);
 		const series = o.leadZero.find((s: { meterName: string }) => s.meterName === 'Meter Two');
 		expect(series.points).toHaveLength(1);
@@ -105,23 +194,53 @@ describe('the overview', () => {
 		const o = await overview();
 		const tech = o.people.find((r: { id: string }) => r.id === w.users.technician.id);
 		const app = o.people.find((r: { id: string }) => r.id === w.users.apprentice.id);
-		expect(tech).toMatchObject({ role: 'technician', tests: 4, finished: 2, withResult: 3, cantTell: 0, cantTellRate: 0 });
-		expect(app).toMatchObject({ role: 'apprentice', tests: 2, finished: 1, withResult: 2, cantTell: 2, cantTellRate: 1 });
-		expect((await overview('?role=apprentice')).people.map((r: { id: string }) => r.id)).toEqual([w.users.apprentice.id]);
+		expect(tech).toMatchObject({
+			role: 'technician',
+			tests: 4,
+			finished: 2,
+			withResult: 3,
+			cantTell: 0,
+			cantTellRate: 0
+		});
+		expect(app).toMatchObject({
+			role: 'apprentice',
+			tests: 2,
+			finished: 1,
+			withResult: 2,
+			cantTell: 2,
+			cantTellRate: 1
+		});
+		expect((await overview('?role=apprentice')).people.map((r: { id: string }) => r.id)).toEqual([
+			w.users.apprentice.id
+		]);
 	});
 
 	it('sorts and filters each table through the URL', async () => {
-		expect((await overview('?partsSort=-failRate')).parts.map((r: { partNumber: string }) => r.partNumber)).toEqual([PN_A, PN_B]);
-		expect((await overview('?partsSort=failRate')).parts.map((r: { partNumber: string }) => r.partNumber)).toEqual([PN_B, PN_A]);
-		expect((await overview('?part=b-2')).parts.map((r: { partNumber: string }) => r.partNumber)).toEqual([PN_B]);
-		expect((await overview('?meter=two')).meters.map((r: { meterName: string }) => r.meterName)).toEqual(['Meter Two']);
+		expect(
+			(await overview('?partsSort=-failRate')).parts.map(
+				(r: { partNumber: string }) => r.partNumber
+			)
+		).toEqual([PN_A, PN_B]);
+		expect(
+			(await overview('?partsSort=failRate')).parts.map((r: { partNumber: string }) => r.partNumber)
+		).toEqual([PN_B, PN_A]);
+		expect(
+			(await overview('?part=b-2')).parts.map((r: { partNumber: string }) => r.partNumber)
+		).toEqual([PN_B]);
+		expect(
+			(await overview('?meter=two')).meters.map((r: { meterName: string }) => r.meterName)
+		).toEqual(['Meter Two']);
 	});
 
 	it('exports a table as CSV with `;` and decimal commas, or `,` and points', async () => {
-		const r = await w.as.lead.get('/api/overview/csv?table=parts&delimiter=semicolon&partsSort=part');
+		const r = await w.as.lead.get(
+			'/api/overview/csv?table=parts&delimiter=semicolon&partsSort=part'
+		);
 		expect(r.status).toBe(200);
 		expect(r.headers.get('content-type')).toContain('text/csv');
-		expect(r.headers.get('content-disposition')).toMatch(/attachment; filename="fieldbench-parts-\d{4}-\d\d-\d\d-to-\d{4}-\d\d-\d\d\.csv"/);
+		expect(r.headers.get('content-disposition')).toMatch(
+			/attachment; filename="fieldbench-parts-\d{4}-\d\d-\d\d-to-\d{4}-\d\d-\d\d\.csv"/
+		);
 		const bytes = new Uint8Array(await r.arrayBuffer());
 		expect([...bytes.slice(0, 3)]).toEqual([0xef, 0xbb, 0xbf]); // the byte-order mark
 		const text = new TextDecoder().decode(bytes);
@@ -131,7 +250,9 @@ describe('the overview', () => {
 			[PN_A, '3', '1', '1', '1', '0', '33,3'],
 			[PN_B, '3', '0', '1', '1', '1', '0']
 		]);
-		const meters = parseCsv(await (await w.as.lead.get('/api/overview/csv?table=meters&metersSort=meter')).text()).rows.map((x) => x.cells);
+		const meters = parseCsv(
+			await (await w.as.lead.get('/api/overview/csv?table=meters&metersSort=meter')).text()
+		).rows.map((x) => x.cells);
 		expect(meters[2]).toEqual(['Meter Two', '3', '2', '1', '0.2', '0.2', '0.2', '0.2', '1', '50']);
 	});
 
@@ -143,7 +264,10 @@ describe('the overview', () => {
 			);
 		const stored = await flags();
 		expect(stored.map((r) => r.range_unresolved).sort()).toEqual([0, 0, 0, 0, 0, 0, 0, 1]);
-		await db().query('UPDATE readings SET range_unresolved = NULL WHERE workshop_id = ?', { replacements: [w.workshop.id], type: QueryTypes.UPDATE });
+		await db().query('UPDATE readings SET range_unresolved = NULL WHERE workshop_id = ?', {
+			replacements: [w.workshop.id],
+			type: QueryTypes.UPDATE
+		});
 		expect(await fillRangeUnresolved(db(), 3)).toBeGreaterThanOrEqual(8);
 		expect(await flags()).toEqual(stored);
 	});
@@ -160,7 +284,10 @@ describe('the overview', () => {
 		expect(kept.reduce((n, r) => n + Number(r.readings), 0)).toBe(8);
 		expect(kept.reduce((n, r) => n + Number(r.out_of_spec), 0)).toBe(2);
 		const ids = kept.map((r) => String(r.test_id));
-		await db().query('DELETE FROM test_summaries WHERE test_id IN (?)', { replacements: [ids], type: QueryTypes.DELETE });
+		await db().query('DELETE FROM test_summaries WHERE test_id IN (?)', {
+			replacements: [ids],
+			type: QueryTypes.DELETE
+		});
 		await fillTestSummaries(db(), ids);
 		expect(await summaries()).toEqual(kept);
 	});

@@ -25,7 +25,10 @@ const readings: Record<string, string> = {};
 beforeAll(async () => {
 	w = await deskWorkshop(base, 'Display');
 	other = await deskWorkshop(base, 'Display elsewhere');
-	const job = await jobs.create(w.users.lead.actor, { complaint: 'Misfire on cylinder 3', assigneeId: w.users.technician.id });
+	const job = await jobs.create(w.users.lead.actor, {
+		complaint: 'Misfire on cylinder 3',
+		assigneeId: w.users.technician.id
+	});
 	jobId = job.id as string;
 	jobNumber = job.number as number;
 	const t = create('test', {
@@ -39,7 +42,17 @@ beforeAll(async () => {
 	});
 	testId = t.entityId;
 	const r = (position: string, raw: number, deviceResult?: object) => {
-		const o = create('reading', { testId, checkKey: 'primary', position, samples: [{ value: raw + 0.01, unit: 'Ω' }, { value: raw, unit: 'Ω' }], rangeLabel: '200 Ω', ...(deviceResult ? { deviceResult } : {}) });
+		const o = create('reading', {
+			testId,
+			checkKey: 'primary',
+			position,
+			samples: [
+				{ value: raw + 0.01, unit: 'Ω' },
+				{ value: raw, unit: 'Ω' }
+			],
+			rangeLabel: '200 Ω',
+			...(deviceResult ? { deviceResult } : {})
+		});
 		readings[position] = o.entityId;
 		return o;
 	};
@@ -50,9 +63,19 @@ beforeAll(async () => {
 		r('3', 0.96, { value: 0.86, verdict: 'high' }),
 		r('4', 0.6, { value: 0.5, verdict: 'within' }),
 		create('spark_test', { jobId, testId, position: '3', gapMm: 7, outcome: 'weak' }),
-		create('swap_test', { jobId, testId, fromPosition: '3', toPosition: '1', beforeCounts: { '3': 6 }, afterCounts: { '1': 5 }, conclusion: 'fault_followed' })
+		create('swap_test', {
+			jobId,
+			testId,
+			fromPosition: '3',
+			toPosition: '1',
+			beforeCounts: { '3': 6 },
+			afterCounts: { '1': 5 },
+			conclusion: 'fault_followed'
+		})
 	];
-	expect((await push(w.as.technician, 'tech-phone', ops)).map((x) => x.status)).toEqual(Array(ops.length).fill('applied'));
+	expect((await push(w.as.technician, 'tech-phone', ops)).map((x) => x.status)).toEqual(
+		Array(ops.length).fill('applied')
+	);
 });
 
 describe('tests on the job', () => {
@@ -62,17 +85,43 @@ describe('tests on the job', () => {
 		const { tests, sparks, swaps } = await r.json();
 		expect(tests).toHaveLength(1);
 		const t = tests[0];
-		expect(t).toMatchObject({ partNumber: w.partNumber, sheetVersion: 1, stateText: 'In progress', positions: ['1', '2', '3', '4'], temperature: 'Measured 20 °C', specsChosen: ['Cold spec · below 50 °C'], mismatches: 1 });
+		expect(t).toMatchObject({
+			partNumber: w.partNumber,
+			sheetVersion: 1,
+			stateText: 'In progress',
+			positions: ['1', '2', '3', '4'],
+			temperature: 'Measured 20 °C',
+			specsChosen: ['Cold spec · below 50 °C'],
+			mismatches: 1
+		});
 		expect(t.technician).toContain('(Technician)');
-		expect(t.meter).toEqual({ name: 'Bench meter 2', leads: 'Lead zero 0.1 Ω, taken off each reading', ranges: ['200 Ω', '20 kΩ'] });
+		expect(t.meter).toEqual({
+			name: 'Bench meter 2',
+			leads: 'Lead zero 0.1 Ω, taken off each reading',
+			ranges: ['200 Ω', '20 kΩ']
+		});
 		const [check] = t.checks;
 		expect(check.specs).toEqual(['Cold spec · below 50 °C: 0.36 Ω to 0.55 Ω']);
-		const byPos = Object.fromEntries(check.readings.map((x: { position: string }) => [x.position, x]));
-		expect(byPos['1']).toMatchObject({ samples: ['0.63 Ω', '0.62 Ω'], differ: false, phone: { key: 'within' }, workshop: { key: 'within', text: '0.52 Ω' }, rangeUnresolved: false });
-		expect(byPos['2']).toMatchObject({ differ: true, phone: { key: 'high', text: '0.61 Ω' }, workshop: { key: 'within', text: '0.51 Ω' } });
+		const byPos = Object.fromEntries(
+			check.readings.map((x: { position: string }) => [x.position, x])
+		);
+		expect(byPos['1']).toMatchObject({
+			samples: ['0.63 Ω', '0.62 Ω'],
+			differ: false,
+			phone: { key: 'within' },
+			workshop: { key: 'within', text: '0.52 Ω' },
+			rangeUnresolved: false
+		});
+		expect(byPos['2']).toMatchObject({
+			differ: true,
+			phone: { key: 'high', text: '0.61 Ω' },
+			workshop: { key: 'within', text: '0.51 Ω' }
+		});
 		expect(byPos['3'].workshop).toMatchObject({ key: 'high', text: '0.86 Ω' });
 		expect(check.comparison).toEqual({ kind: 'odd', odd: ['3'] });
-		expect(sparks).toEqual([expect.objectContaining({ position: '3', gap: '7 mm', outcomeText: 'Weak spark' })]);
+		expect(sparks).toEqual([
+			expect.objectContaining({ position: '3', gap: '7 mm', outcomeText: 'Weak spark' })
+		]);
 		expect(swaps[0].conclusion).toContain('followed the coil');
 	});
 

@@ -18,4 +18,3 @@ export type ClashView = {
 	/** Whether the lead may type or choose a value of their own. */
 	ownValue: boolean;
 };
-

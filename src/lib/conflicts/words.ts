@@ -93,21 +93,36 @@ export function fieldWord(entity: string, field: string): FieldWord {
 	return FIELD_WORDS[entity]?.[field] ?? { label: 'Details', kind: 'other' };
 }
 
-export const TEST_STATES = { in_progress: 'In progress', done: 'Finished', abandoned: 'Abandoned' } as const;
+export const TEST_STATES = {
+	in_progress: 'In progress',
+	done: 'Finished',
+	abandoned: 'Abandoned'
+} as const;
 
 /** The values a choice field offers, for "another value". */
 export function choicesOf(kind: FieldKind): { value: string; label: string }[] | null {
-	if (kind === 'status') return Object.entries(STATUS_LABELS).map(([value, label]) => ({ value, label }));
-	if (kind === 'testState') return Object.entries(TEST_STATES).map(([value, label]) => ({ value, label }));
-	if (kind === 'yesNo') return [{ value: 'yes', label: 'Yes' }, { value: 'no', label: 'No' }];
+	if (kind === 'status')
+		return Object.entries(STATUS_LABELS).map(([value, label]) => ({ value, label }));
+	if (kind === 'testState')
+		return Object.entries(TEST_STATES).map(([value, label]) => ({ value, label }));
+	if (kind === 'yesNo')
+		return [
+			{ value: 'yes', label: 'Yes' },
+			{ value: 'no', label: 'No' }
+		];
 	return null;
 }
 
 /** Whether the lead can give a value of their own (typed, or chosen from a list). */
-export const takesOwnValue = (kind: FieldKind) => kind === 'text' || kind === 'number' || choicesOf(kind) !== null;
+export const takesOwnValue = (kind: FieldKind) =>
+	kind === 'text' || kind === 'number' || choicesOf(kind) !== null;
 
 /** Names the inbox looks values up in: people, customers and vehicles by id. */
-export type Names = { people: Map<string, string>; customers: Map<string, string>; vehicles: Map<string, string> };
+export type Names = {
+	people: Map<string, string>;
+	customers: Map<string, string>;
+	vehicles: Map<string, string>;
+};
 
 /** A stored value as a person reads it. */
 export function valueText(kind: FieldKind, value: unknown, names: Names): string {
@@ -131,7 +146,9 @@ export function valueText(kind: FieldKind, value: unknown, names: Names): string
 			return KIND_LABELS[value as ComponentKind] ?? String(value);
 		case 'codes': {
 			const list = value as { code: string; text?: string }[];
-			return list.length ? list.map((c) => (c.text ? `${c.code} (${c.text})` : c.code)).join(', ') : '(none)';
+			return list.length
+				? list.map((c) => (c.text ? `${c.code} (${c.text})` : c.code)).join(', ')
+				: '(none)';
 		}
 		case 'text':
 		case 'number':
@@ -145,10 +162,16 @@ function describeOther(value: unknown): string {
 	if (typeof value !== 'object') return String(value);
 	const v = value as Record<string, unknown>;
 	if (typeof v.mode === 'string') {
-		const modes: Record<string, string> = { overnight: 'Stood overnight', warm: 'Warm', just_run: 'Just run', unknown: 'Not known' };
+		const modes: Record<string, string> = {
+			overnight: 'Stood overnight',
+			warm: 'Warm',
+			just_run: 'Just run',
+			unknown: 'Not known'
+		};
 		return v.mode === 'measured' ? `Measured ${v.tempC} °C` : (modes[v.mode] ?? v.mode);
 	}
-	if (Array.isArray(v.ranges)) return `${v.name ?? 'Meter'}, ${v.relativeMode ? 'relative mode' : `leads ${v.leadResistance ?? 0} Ω taken off`}`;
+	if (Array.isArray(v.ranges))
+		return `${v.name ?? 'Meter'}, ${v.relativeMode ? 'relative mode' : `leads ${v.leadResistance ?? 0} Ω taken off`}`;
 	if (Array.isArray(value)) return `${value.length} item${value.length === 1 ? '' : 's'}`;
 	return 'Changed details';
 }

@@ -25,7 +25,14 @@ const HEADERS: Record<OverviewTable, string[]> = {
 		'range_could_not_resolve',
 		'range_could_not_resolve_pct'
 	],
-	'lead-zero': ['meter', 'period_start', 'tests', 'lead_zero_avg_ohm', 'lead_zero_min_ohm', 'lead_zero_max_ohm'],
+	'lead-zero': [
+		'meter',
+		'period_start',
+		'tests',
+		'lead_zero_avg_ohm',
+		'lead_zero_min_ohm',
+		'lead_zero_max_ohm'
+	],
 	people: ['name', 'role', 'tests', 'finished', 'with_result', 'cant_tell', 'cant_tell_pct']
 };
 
@@ -35,7 +42,15 @@ const ohm = (v: number | null) => (v == null ? null : Math.round(v * 10_000) / 1
 function lines(table: OverviewTable, t: OverviewTables): Cell[][] {
 	switch (table) {
 		case 'parts':
-			return t.parts.map((r) => [r.partNumber ?? '', r.tests, r.outOfSpec, r.cantTell, r.ok, r.noResult, pct(r.failRate)]);
+			return t.parts.map((r) => [
+				r.partNumber ?? '',
+				r.tests,
+				r.outOfSpec,
+				r.cantTell,
+				r.ok,
+				r.noResult,
+				pct(r.failRate)
+			]);
 		case 'meters':
 			return t.meters.map((r) => [
 				r.meterName ?? '',
@@ -51,7 +66,14 @@ function lines(table: OverviewTable, t: OverviewTables): Cell[][] {
 			]);
 		case 'lead-zero':
 			return t.leadZero.flatMap((s) =>
-				s.points.map((p) => [s.meterName ?? '', p.period, p.tests, ohm(p.avgOhms), ohm(p.minOhms), ohm(p.maxOhms)])
+				s.points.map((p) => [
+					s.meterName ?? '',
+					p.period,
+					p.tests,
+					ohm(p.avgOhms),
+					ohm(p.minOhms),
+					ohm(p.maxOhms)
+				])
 			);
 		case 'people':
 			return t.people.map((r) => [
@@ -67,7 +89,15 @@ function lines(table: OverviewTable, t: OverviewTables): Cell[][] {
 }
 
 /** One table of the overview as CSV text (`;` gives decimal commas). */
-export function overviewCsv(table: OverviewTable, tables: OverviewTables, delimiter: ',' | ';' = ','): string {
-	const cell = (c: Cell) => (c == null ? '' : typeof c === 'number' ? plainNumber(c, delimiter === ';') : guardFormula(c));
-	return '\uFEFF' + writeCsv([HEADERS[table], ...lines(table, tables).map((l) => l.map(cell))], delimiter);
+export function overviewCsv(
+	table: OverviewTable,
+	tables: OverviewTables,
+	delimiter: ',' | ';' = ','
+): string {
+	const cell = (c: Cell) =>
+		c == null ? '' : typeof c === 'number' ? plainNumber(c, delimiter === ';') : guardFormula(c);
+	return (
+		'\uFEFF' +
+		writeCsv([HEADERS[table], ...lines(table, tables).map((l) => l.map(cell))], delimiter)
+	);
 }

@@ -2,8 +2,17 @@
 import { formatQuantity } from '../domain/units';
 import type { Bucket } from './tables';
 
-const DAY = new Intl.DateTimeFormat('en-GB', { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' });
-const MONTH = new Intl.DateTimeFormat('en-GB', { month: 'short', year: 'numeric', timeZone: 'UTC' });
+const DAY = new Intl.DateTimeFormat('en-GB', {
+	day: 'numeric',
+	month: 'short',
+	year: 'numeric',
+	timeZone: 'UTC'
+});
+const MONTH = new Intl.DateTimeFormat('en-GB', {
+	month: 'short',
+	year: 'numeric',
+	timeZone: 'UTC'
+});
 
 /** A rate 0–1 as a whole percentage ("25 %"), one decimal below 10 %; "—" for none. */
 export function percent(rate: number | null): string {

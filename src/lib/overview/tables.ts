@@ -104,13 +104,24 @@ function sumBy<K>(groups: TestGroup[], keyOf: (g: TestGroup) => K) {
 	}
 	return out;
 }
-const total = (list: TestGroup[], k: keyof TestGroup) => list.reduce((n, g) => n + (g[k] as number), 0);
+const total = (list: TestGroup[], k: keyof TestGroup) =>
+	list.reduce((n, g) => n + (g[k] as number), 0);
 
 export function partRows(groups: TestGroup[]): PartRow[] {
 	return [...sumBy(groups, (g) => g.partNumber)].map(([partNumber, list]) => {
-		const [tests, outOfSpec, cantTell, ok] = (['tests', 'outOfSpec', 'cantTell', 'ok'] as const).map((k) => total(list, k));
+		const [tests, outOfSpec, cantTell, ok] = (
+			['tests', 'outOfSpec', 'cantTell', 'ok'] as const
+		).map((k) => total(list, k));
 		const judged = outOfSpec + cantTell + ok;
-		return { partNumber, tests, outOfSpec, cantTell, ok, noResult: tests - judged, failRate: rate(outOfSpec, judged) };
+		return {
+			partNumber,
+			tests,
+			outOfSpec,
+			cantTell,
+			ok,
+			noResult: tests - judged,
+			failRate: rate(outOfSpec, judged)
+		};
 	});
 }
 
@@ -119,7 +130,10 @@ export function leadSeries(points: LeadPoint[]): LeadSeries[] {
 	const by = new Map<string | null, LeadPoint[]>();
 	for (const p of points) by.set(p.meterName, [...(by.get(p.meterName) ?? []), p]);
 	return [...by]
-		.map(([meterName, list]) => ({ meterName, points: list.sort((a, b) => a.period.localeCompare(b.period)) }))
+		.map(([meterName, list]) => ({
+			meterName,
+			points: list.sort((a, b) => a.period.localeCompare(b.period))
+		}))
 		.sort((a, b) => (a.meterName ?? '').localeCompare(b.meterName ?? ''));
 }
 
@@ -148,7 +162,9 @@ export function peopleRows(groups: TestGroup[], people: Person[]): PersonRow[] {
 	const byId = new Map(people.map((p) => [p.id, p]));
 	return [...sumBy(groups, (g) => g.technicianId)].map(([id, list]) => {
 		const p = id ? byId.get(id) : undefined;
-		const [tests, outOfSpec, cantTell, ok] = (['tests', 'outOfSpec', 'cantTell', 'ok'] as const).map((k) => total(list, k));
+		const [tests, outOfSpec, cantTell, ok] = (
+			['tests', 'outOfSpec', 'cantTell', 'ok'] as const
+		).map((k) => total(list, k));
 		const withResult = outOfSpec + cantTell + ok;
 		return {
 			id,
@@ -174,12 +190,14 @@ export function sortRows<R>(rows: R[], sort: string, nameOf: (r: R) => string): 
 		const x = a[key] as unknown;
 		const y = b[key] as unknown;
 		if (x == null || y == null) return x == null && y == null ? 0 : x == null ? 1 : -1;
-		const c = typeof x === 'number' && typeof y === 'number' ? x - y : String(x).localeCompare(String(y));
+		const c =
+			typeof x === 'number' && typeof y === 'number' ? x - y : String(x).localeCompare(String(y));
 		return (desc ? -c : c) || nameOf(a).localeCompare(nameOf(b));
 	});
 }
 
-const matches = (text: string | null, filter: string) => !filter || (text ?? '').toLowerCase().includes(filter.toLowerCase());
+const matches = (text: string | null, filter: string) =>
+	!filter || (text ?? '').toLowerCase().includes(filter.toLowerCase());
 
 /** The three tables and the lead-zero series, filtered and sorted as the query asks. */
 export function overviewTables(
@@ -193,7 +211,13 @@ export function overviewTables(
 	const shown = new Set(meters.map((m) => m.meterName));
 	const persons = peopleRows(groups, people).filter((r) => q.role === 'all' || r.role === q.role);
 	return {
-		parts: sortRows(parts, q.partsSort === 'part' || q.partsSort === '-part' ? q.partsSort.replace('part', 'partNumber') : q.partsSort, (r) => r.partNumber ?? ''),
+		parts: sortRows(
+			parts,
+			q.partsSort === 'part' || q.partsSort === '-part'
+				? q.partsSort.replace('part', 'partNumber')
+				: q.partsSort,
+			(r) => r.partNumber ?? ''
+		),
 		meters: sortRows(meters, q.metersSort.replace('meter', 'meterName'), (r) => r.meterName ?? ''),
 		leadZero: leadSeries(points).filter((s) => shown.has(s.meterName)),
 		people: sortRows(persons, q.peopleSort, (r) => r.name)

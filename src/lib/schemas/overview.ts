@@ -11,7 +11,14 @@ const day = z
 	.refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)), 'Not a date');
 
 export const PART_SORTS = ['part', 'tests', 'outOfSpec', 'cantTell', 'ok', 'failRate'] as const;
-export const METER_SORTS = ['meter', 'tests', 'readings', 'leadAvg', 'leadLatest', 'unresolvedRate'] as const;
+export const METER_SORTS = [
+	'meter',
+	'tests',
+	'readings',
+	'leadAvg',
+	'leadLatest',
+	'unresolvedRate'
+] as const;
 export const PEOPLE_SORTS = ['name', 'role', 'tests', 'finished', 'cantTellRate'] as const;
 export const OVERVIEW_TABLES = ['parts', 'meters', 'lead-zero', 'people'] as const;
 export type OverviewTable = (typeof OVERVIEW_TABLES)[number];
@@ -44,7 +51,10 @@ export const overviewCsvQuery = z.object({
 });
 
 /** The days of a query: its own, or the last `DEFAULT_DAYS` up to `today` (UTC). */
-export function daysOf(q: Pick<OverviewQuery, 'from' | 'to'>, today = new Date()): { from: string; to: string } {
+export function daysOf(
+	q: Pick<OverviewQuery, 'from' | 'to'>,
+	today = new Date()
+): { from: string; to: string } {
 	const to = q.to ?? today.toISOString().slice(0, 10);
 	const back = new Date(Date.parse(`${to}T00:00:00Z`) - (DEFAULT_DAYS - 1) * 86_400_000);
 	return { from: q.from ?? back.toISOString().slice(0, 10), to };

@@ -15,7 +15,11 @@ import { ROLE_LABELS } from '../labels';
 import type { Role } from '../roles';
 
 type Rec = Record<string, unknown>;
-export type SheetChecks = { id: string; sheetVersion: number; checks: (CheckSpec & { label: string; from?: string | null; to?: string | null })[] };
+export type SheetChecks = {
+	id: string;
+	sheetVersion: number;
+	checks: (CheckSpec & { label: string; from?: string | null; to?: string | null })[];
+};
 export type People = Map<string, { name: string; role: Role }>;
 export type ResultKey = ReturnType<typeof resultKey>;
 
@@ -66,11 +70,34 @@ export type TestView = {
 	mismatches: number;
 	notes: string | null;
 };
-export type SparkView = { id: string; position: string; gap: string; outcome: 'go' | 'weak' | 'none'; outcomeText: string; note: string | null; by: string; at: string | null };
-export type SwapView = { id: string; from: string; to: string; before: string; after: string; conclusion: string; note: string | null; by: string; at: string | null };
+export type SparkView = {
+	id: string;
+	position: string;
+	gap: string;
+	outcome: 'go' | 'weak' | 'none';
+	outcomeText: string;
+	note: string | null;
+	by: string;
+	at: string | null;
+};
+export type SwapView = {
+	id: string;
+	from: string;
+	to: string;
+	before: string;
+	after: string;
+	conclusion: string;
+	note: string | null;
+	by: string;
+	at: string | null;
+};
 export type JobTestsView = { tests: TestView[]; sparks: SparkView[]; swaps: SwapView[] };
 
-export const TEST_STATE_TEXT = { in_progress: 'In progress', done: 'Finished', abandoned: 'Abandoned' } as const;
+export const TEST_STATE_TEXT = {
+	in_progress: 'In progress',
+	done: 'Finished',
+	abandoned: 'Abandoned'
+} as const;
 export const SPARK_TEXT = { go: 'Sparks', weak: 'Weak spark', none: 'No spark' } as const;
 export const SWAP_TEXT = {
 	fault_followed: 'The misfire followed the coil: the coil is the likely cause',
@@ -84,7 +111,8 @@ const TEMP_TEXT = {
 	unknown: 'Not known'
 } as const;
 
-const quantityOf = (q: string): Quantity => (q === 'voltage' || q === 'voltage_drop' ? 'voltage' : q === 'current' ? 'current' : 'resistance');
+const quantityOf = (q: string): Quantity =>
+	q === 'voltage' || q === 'voltage_drop' ? 'voltage' : q === 'current' ? 'current' : 'resistance';
 const str = (v: unknown) => (typeof v === 'string' && v !== '' ? v : null);
 const iso = (v: unknown) => (v == null ? null : new Date(v as string).toISOString());
 
@@ -105,15 +133,29 @@ function personOf(people: People, id: unknown, fallback = 'Someone not on this p
 	return p ? `${p.name} (${ROLE_LABELS[p.role]})` : fallback;
 }
 
-function resultOf(r: unknown, quantity: Quantity, openOk: boolean, locale: string): ResultView | null {
+function resultOf(
+	r: unknown,
+	quantity: Quantity,
+	openOk: boolean,
+	locale: string
+): ResultView | null {
 	if (!r || typeof r !== 'object') return null;
 	const x = r as { value?: number | null; verdict?: string; ol?: boolean };
 	const value = x.ol ? Infinity : (x.value ?? null);
 	const key = resultKey((x.verdict ?? 'no_spec') as never, value, openOk);
-	return { key, value: value === Infinity ? null : value, text: value == null ? '—' : value === Infinity ? 'OL' : formatQuantity(value, quantity, { locale }) };
+	return {
+		key,
+		value: value === Infinity ? null : value,
+		text:
+			value == null ? '—' : value === Infinity ? 'OL' : formatQuantity(value, quantity, { locale })
+	};
 }
 
-function limitsText(b: { min: number | null; max: number | null }, unit: string | null, locale: string) {
+function limitsText(
+	b: { min: number | null; max: number | null },
+	unit: string | null,
+	locale: string
+) {
 	const comma = (1.5).toLocaleString(locale).includes(',');
 	const n = (v: number) => `${plainNumber(limitFromBase(v, unit), comma)} ${unit ?? ''}`.trim();
 	if (b.min != null && b.max != null) return `${n(b.min)} to ${n(b.max)}`;
@@ -123,7 +165,9 @@ function limitsText(b: { min: number | null; max: number | null }, unit: string 
 }
 
 function sampleText(s: Sample, quantity: Quantity, locale: string) {
-	return s.value === 'OL' ? 'OL' : formatQuantity(toBase(s.value, s.unit), quantity, { locale, digits: 4 });
+	return s.value === 'OL'
+		? 'OL'
+		: formatQuantity(toBase(s.value, s.unit), quantity, { locale, digits: 4 });
 }
 
 function temperatureText(t: TemperatureSnapshot | null) {
@@ -143,7 +187,12 @@ function meterOf(m: Rec | null, locale: string): TestView['meter'] {
 	return { name: str(m.name) ?? 'Meter', leads, ranges };
 }
 
-function checkView(check: SheetChecks['checks'][number], readings: Rec[], temp: TemperatureSnapshot, locale: string): CheckView {
+function checkView(
+	check: SheetChecks['checks'][number],
+	readings: Rec[],
+	temp: TemperatureSnapshot,
+	locale: string
+): CheckView {
 	const quantity = quantityOf(check.quantity);
 	const views: ReadingView[] = readings.map((r) => {
 		const workshop = resultOf(r.serverResult, quantity, check.openOk, locale);
@@ -165,36 +214,76 @@ function checkView(check: SheetChecks['checks'][number], readings: Rec[], temp: 
 		const value = res?.text === 'OL' ? Infinity : res?.value;
 		if (res && value != null) byPosition[v.position ?? '1'] = { value, verdict: res.key };
 	}
-	const finite = Object.fromEntries(Object.entries(byPosition).filter(([, x]) => Number.isFinite(x.value)).map(([k, x]) => [k, x.value]));
+	const finite = Object.fromEntries(
+		Object.entries(byPosition)
+			.filter(([, x]) => Number.isFinite(x.value))
+			.map(([k, x]) => [k, x.value])
+	);
 	return {
 		key: check.key,
 		label: check.label,
-		terminals: check.from || check.to ? `between ${check.from ?? '?'} and ${check.to ?? '?'}` : null,
+		terminals:
+			check.from || check.to ? `between ${check.from ?? '?'} and ${check.to ?? '?'}` : null,
 		unit: check.unit ?? null,
 		quantity,
-		specs: bandsFor(check.bands, temp).map((b) => `${bandName(b)}: ${limitsText(b, check.unit, locale)}`),
+		specs: bandsFor(check.bands, temp).map(
+			(b) => `${bandName(b)}: ${limitsText(b, check.unit, locale)}`
+		),
 		readings: views,
 		byPosition,
 		comparison: comparePositions(finite)
 	};
 }
 
-function testView(t: Rec, readings: Rec[], sheets: Map<string, SheetChecks>, people: People, locale: string): TestView {
+function testView(
+	t: Rec,
+	readings: Rec[],
+	sheets: Map<string, SheetChecks>,
+	people: People,
+	locale: string
+): TestView {
 	const temp = (t.temperature as TemperatureSnapshot | null) ?? null;
 	const judgedAt: TemperatureSnapshot = temp ?? { mode: 'unknown' };
 	const sheet = typeof t.sheetId === 'string' ? sheets.get(t.sheetId) : undefined;
-	const mine = readings.filter((r) => r.testId === t.id).sort((a, b) => String(a.createdAt ?? a.deviceTime ?? '').localeCompare(String(b.createdAt ?? b.deviceTime ?? '')));
+	const mine = readings
+		.filter((r) => r.testId === t.id)
+		.sort((a, b) =>
+			String(a.createdAt ?? a.deviceTime ?? '').localeCompare(
+				String(b.createdAt ?? b.deviceTime ?? '')
+			)
+		);
 	const known = new Set(sheet?.checks.map((c) => c.key));
 	const checks = (sheet?.checks ?? [])
 		.filter((c) => c.quantity !== 'visual' && c.quantity !== 'spark')
-		.map((c) => checkView(c, mine.filter((r) => r.checkKey === c.key), judgedAt, locale));
+		.map((c) =>
+			checkView(
+				c,
+				mine.filter((r) => r.checkKey === c.key),
+				judgedAt,
+				locale
+			)
+		);
 	// Readings of a check this phone does not know (its sheet not synced yet) are still listed.
 	const loose = mine.filter((r) => !known.has(String(r.checkKey)));
 	if (loose.length) {
 		const keys = [...new Set(loose.map((r) => String(r.checkKey)))];
 		for (const key of keys) {
-			const stub = { key, label: key, quantity: 'resistance', unit: 'Ω', openOk: false, bands: [] } as SheetChecks['checks'][number];
-			checks.push(checkView(stub, loose.filter((r) => r.checkKey === key), judgedAt, locale));
+			const stub = {
+				key,
+				label: key,
+				quantity: 'resistance',
+				unit: 'Ω',
+				openOk: false,
+				bands: []
+			} as SheetChecks['checks'][number];
+			checks.push(
+				checkView(
+					stub,
+					loose.filter((r) => r.checkKey === key),
+					judgedAt,
+					locale
+				)
+			);
 		}
 	}
 	const first = sheet?.checks.find((c) => c.bands.length > 0);
@@ -207,7 +296,10 @@ function testView(t: Rec, readings: Rec[], sheets: Map<string, SheetChecks>, peo
 		stateText: TEST_STATE_TEXT[state],
 		technician: personOf(people, t.technicianId),
 		startedAt: iso(t.createdAt),
-		positions: String(t.position ?? '').split(',').map((p) => p.trim()).filter(Boolean),
+		positions: String(t.position ?? '')
+			.split(',')
+			.map((p) => p.trim())
+			.filter(Boolean),
 		meter: meterOf((t.meter as Rec | null) ?? null, locale),
 		temperature: temperatureText(temp),
 		specsChosen: first ? bandsFor(first.bands, judgedAt).map((b) => bandName(b)) : [],
@@ -222,14 +314,19 @@ function testView(t: Rec, readings: Rec[], sheets: Map<string, SheetChecks>, peo
 export function buildJobTests(input: BuildInput): JobTestsView {
 	const { people, locale } = input;
 	const sheets = new Map(input.sheets.map((s) => [s.id, s]));
-	const byTime = (a: Rec, b: Rec) => String(a.createdAt ?? a.deviceTime ?? '').localeCompare(String(b.createdAt ?? b.deviceTime ?? ''));
+	const byTime = (a: Rec, b: Rec) =>
+		String(a.createdAt ?? a.deviceTime ?? '').localeCompare(
+			String(b.createdAt ?? b.deviceTime ?? '')
+		);
 	const comma = (1.5).toLocaleString(locale).includes(',');
 	const counts = (c: unknown) =>
 		Object.entries((c as Record<string, number>) ?? {})
 			.map(([p, n]) => `cyl ${p}: ${n}`)
 			.join(', ') || 'none';
 	return {
-		tests: [...input.tests].sort(byTime).map((t) => testView(t, input.readings, sheets, people, locale)),
+		tests: [...input.tests]
+			.sort(byTime)
+			.map((t) => testView(t, input.readings, sheets, people, locale)),
 		sparks: [...input.sparks].sort(byTime).map((s) => ({
 			id: String(s.id),
 			position: String(s.position),

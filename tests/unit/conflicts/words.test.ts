@@ -1,6 +1,13 @@
 import { describe, expect, it } from 'vitest';
 import { settleForm, settleInputOf } from '../../../src/lib/conflicts/form';
-import { choicesOf, fieldWord, takesOwnValue, typedValue, valueText, type Names } from '../../../src/lib/conflicts/words';
+import {
+	choicesOf,
+	fieldWord,
+	takesOwnValue,
+	typedValue,
+	valueText,
+	type Names
+} from '../../../src/lib/conflicts/words';
 
 // Invented people, customers and vehicles.
 const NAMES: Names = {
@@ -26,7 +33,9 @@ describe('a clashing field in the product’s words', () => {
 		expect(valueText('customer', 'c1', NAMES)).toBe('Ilse Marrow');
 		expect(valueText('vehicle', 'v1', NAMES)).toBe('Corvane Sable TB24 KQL');
 		expect(valueText('yesNo', true, NAMES)).toBe('Yes');
-		expect(valueText('codes', [{ code: 'P0301', text: 'Cylinder 1 misfire' }, { code: 'P0302' }], NAMES)).toBe('P0301 (Cylinder 1 misfire), P0302');
+		expect(
+			valueText('codes', [{ code: 'P0301', text: 'Cylinder 1 misfire' }, { code: 'P0302' }], NAMES)
+		).toBe('P0301 (Cylinder 1 misfire), P0302');
 		expect(valueText('text', null, NAMES)).toBe('(empty)');
 		expect(valueText('deleted', true, NAMES)).toBe('Delete it');
 		expect(valueText('other', { mode: 'measured', tempC: 21 }, NAMES)).toBe('Measured 21 °C');
@@ -57,9 +66,20 @@ describe('the settle form', () => {
 
 	it('turns each choice into the service’s input, with the note', () => {
 		const f = (v: Record<string, string>) => settleForm.parse({ conflictId: id, ...v });
-		expect(settleInputOf(f({ choice: 'stored', note: ' checked the car ' }), 'status')).toEqual({ pick: 'server', note: 'checked the car' });
-		expect(settleInputOf(f({ choice: 'phone:dev-2' }), 'status')).toEqual({ pick: 'candidate', deviceId: 'dev-2', note: undefined });
-		expect(settleInputOf(f({ choice: 'own', value: '91500' }), 'number')).toEqual({ pick: 'value', value: 91500, note: undefined });
+		expect(settleInputOf(f({ choice: 'stored', note: ' checked the car ' }), 'status')).toEqual({
+			pick: 'server',
+			note: 'checked the car'
+		});
+		expect(settleInputOf(f({ choice: 'phone:dev-2' }), 'status')).toEqual({
+			pick: 'candidate',
+			deviceId: 'dev-2',
+			note: undefined
+		});
+		expect(settleInputOf(f({ choice: 'own', value: '91500' }), 'number')).toEqual({
+			pick: 'value',
+			value: 91500,
+			note: undefined
+		});
 	});
 
 	it('asks for a choice when none was picked', () => {

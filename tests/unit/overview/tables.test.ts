@@ -34,12 +34,44 @@ const g = (over: Partial<TestGroup>): TestGroup => ({
 const GROUPS: TestGroup[] = [
 	g({ tests: 4, outOfSpec: 1, cantTell: 1, ok: 2, readings: 16, unresolved: 2, rangeKnown: 16 }),
 	g({ state: 'in_progress', tests: 2, ok: 1, readings: 3, rangeKnown: 3 }), // one test not judged yet
-	g({ partNumber: 'ZX-2', technicianId: 'a', meterName: 'Bench B', tests: 3, cantTell: 2, ok: 1, readings: 6, unresolved: 3, rangeKnown: 4, relative: 1 }),
-	g({ partNumber: null, technicianId: 'gone', meterName: null, tests: 1, outOfSpec: 1, readings: 1 })
+	g({
+		partNumber: 'ZX-2',
+		technicianId: 'a',
+		meterName: 'Bench B',
+		tests: 3,
+		cantTell: 2,
+		ok: 1,
+		readings: 6,
+		unresolved: 3,
+		rangeKnown: 4,
+		relative: 1
+	}),
+	g({
+		partNumber: null,
+		technicianId: 'gone',
+		meterName: null,
+		tests: 1,
+		outOfSpec: 1,
+		readings: 1
+	})
 ];
 const POINTS: LeadPoint[] = [
-	{ meterName: 'Bench A', period: '2026-11-23', tests: 2, avgOhms: 0.1, minOhms: 0.09, maxOhms: 0.11 },
-	{ meterName: 'Bench A', period: '2026-11-16', tests: 6, avgOhms: 0.14, minOhms: 0.12, maxOhms: 0.2 },
+	{
+		meterName: 'Bench A',
+		period: '2026-11-23',
+		tests: 2,
+		avgOhms: 0.1,
+		minOhms: 0.09,
+		maxOhms: 0.11
+	},
+	{
+		meterName: 'Bench A',
+		period: '2026-11-16',
+		tests: 6,
+		avgOhms: 0.14,
+		minOhms: 0.12,
+		maxOhms: 0.2
+	},
 	{ meterName: 'Bench B', period: '2026-11-23', tests: 2, avgOhms: 0.3, minOhms: 0.3, maxOhms: 0.3 }
 ];
 const PEOPLE = [
@@ -59,7 +91,11 @@ describe('the part-number table', () => {
 			noResult: 1,
 			failRate: 1 / 5
 		});
-		expect(rows.find((r) => r.partNumber === 'ZX-2')).toMatchObject({ tests: 3, outOfSpec: 0, failRate: 0 });
+		expect(rows.find((r) => r.partNumber === 'ZX-2')).toMatchObject({
+			tests: 3,
+			outOfSpec: 0,
+			failRate: 0
+		});
 		expect(rows.find((r) => r.partNumber === null)).toMatchObject({ tests: 1, failRate: 1 });
 	});
 
@@ -80,7 +116,12 @@ describe('the meter table', () => {
 		expect(a.unresolved).toBe(2);
 		expect(a.unresolvedRate).toBeCloseTo(2 / 19, 12);
 		const b = meterRows(GROUPS, POINTS).find((r) => r.meterName === 'Bench B')!;
-		expect(b).toMatchObject({ relativeTests: 1, unresolved: 3, unresolvedRate: 3 / 4, leadAvg: 0.3 });
+		expect(b).toMatchObject({
+			relativeTests: 1,
+			unresolved: 3,
+			unresolvedRate: 3 / 4,
+			leadAvg: 0.3
+		});
 	});
 
 	it('orders each meter’s lead zero oldest first', () => {
@@ -91,9 +132,25 @@ describe('the meter table', () => {
 describe('the people table', () => {
 	it('counts tests and finished tests per person and the can’t-tell share of those with a result', () => {
 		const rows = peopleRows(GROUPS, PEOPLE);
-		expect(rows.find((r) => r.id === 't')).toMatchObject({ name: 'Ansel Brook', role: 'technician', tests: 6, finished: 4, withResult: 5, cantTell: 1, cantTellRate: 0.2 });
-		expect(rows.find((r) => r.id === 'a')).toMatchObject({ role: 'apprentice', tests: 3, cantTell: 2, cantTellRate: 2 / 3 });
-		expect(rows.find((r) => r.id === 'gone')).toMatchObject({ name: 'Someone no longer in the workshop', role: null });
+		expect(rows.find((r) => r.id === 't')).toMatchObject({
+			name: 'Ansel Brook',
+			role: 'technician',
+			tests: 6,
+			finished: 4,
+			withResult: 5,
+			cantTell: 1,
+			cantTellRate: 0.2
+		});
+		expect(rows.find((r) => r.id === 'a')).toMatchObject({
+			role: 'apprentice',
+			tests: 3,
+			cantTell: 2,
+			cantTellRate: 2 / 3
+		});
+		expect(rows.find((r) => r.id === 'gone')).toMatchObject({
+			name: 'Someone no longer in the workshop',
+			role: null
+		});
 	});
 });
 
@@ -111,7 +168,14 @@ describe('sorting and filtering', () => {
 
 	it('filters parts and meters by text, people by role, and keeps only the shown meters’ lead zero', () => {
 		const t = overviewTables(
-			{ part: 'zx-2', meter: 'bench b', role: 'apprentice', partsSort: '-failRate', metersSort: 'meter', peopleSort: 'name' },
+			{
+				part: 'zx-2',
+				meter: 'bench b',
+				role: 'apprentice',
+				partsSort: '-failRate',
+				metersSort: 'meter',
+				peopleSort: 'name'
+			},
 			GROUPS,
 			POINTS,
 			PEOPLE
@@ -123,7 +187,19 @@ describe('sorting and filtering', () => {
 	});
 
 	it('sorts the part table by part number when asked', () => {
-		const t = overviewTables({ part: '', meter: '', role: 'all', partsSort: '-part', metersSort: '-meter', peopleSort: '-tests' }, GROUPS, POINTS, PEOPLE);
+		const t = overviewTables(
+			{
+				part: '',
+				meter: '',
+				role: 'all',
+				partsSort: '-part',
+				metersSort: '-meter',
+				peopleSort: '-tests'
+			},
+			GROUPS,
+			POINTS,
+			PEOPLE
+		);
 		expect(t.parts.map((r) => r.partNumber)).toEqual(['ZX-2', 'ZX-1', null]);
 		expect(t.meters.map((r) => r.meterName)).toEqual(['Bench B', 'Bench A', null]);
 	});
@@ -139,11 +215,27 @@ describe('periods', () => {
 });
 
 describe('CSV', () => {
-	const tables = overviewTables({ part: '', meter: '', role: 'all', partsSort: 'part', metersSort: 'meter', peopleSort: 'name' }, GROUPS, POINTS, PEOPLE);
+	const tables = overviewTables(
+		{
+			part: '',
+			meter: '',
+			role: 'all',
+			partsSort: 'part',
+			metersSort: 'meter',
+			peopleSort: 'name'
+		},
+		GROUPS,
+		POINTS,
+		PEOPLE
+	);
 
 	it('writes the part table with `;` and decimal commas, a byte-order mark and CRLF lines', () => {
 		const text = overviewCsv('parts', tables, ';');
-		expect(text.startsWith('\uFEFFpart_number;tests;out_of_spec;cant_tell;ok;no_result;out_of_spec_pct\r\n')).toBe(true);
+		expect(
+			text.startsWith(
+				'\uFEFFpart_number;tests;out_of_spec;cant_tell;ok;no_result;out_of_spec_pct\r\n'
+			)
+		).toBe(true);
 		expect(text).toContain('\r\nZX-1;6;1;1;3;1;20\r\n');
 		const { rows } = parseCsv(overviewCsv('meters', tables, ';'));
 		const a = rows.find((r) => r.cells[0] === 'Bench A')!.cells;
@@ -153,14 +245,41 @@ describe('CSV', () => {
 
 	it('writes decimal points with `,`, and the lead zero per period', () => {
 		const { rows } = parseCsv(overviewCsv('lead-zero', tables, ','));
-		expect(rows[0].cells).toEqual(['meter', 'period_start', 'tests', 'lead_zero_avg_ohm', 'lead_zero_min_ohm', 'lead_zero_max_ohm']);
+		expect(rows[0].cells).toEqual([
+			'meter',
+			'period_start',
+			'tests',
+			'lead_zero_avg_ohm',
+			'lead_zero_min_ohm',
+			'lead_zero_max_ohm'
+		]);
 		expect(rows[1].cells).toEqual(['Bench A', '2026-11-16', '6', '0.14', '0.12', '0.2']);
 		const people = parseCsv(overviewCsv('people', tables, ',')).rows;
-		expect(people.find((r) => r.cells[0] === 'Wren Tolley')!.cells).toEqual(['Wren Tolley', 'Apprentice', '3', '3', '3', '2', '66.7']);
+		expect(people.find((r) => r.cells[0] === 'Wren Tolley')!.cells).toEqual([
+			'Wren Tolley',
+			'Apprentice',
+			'3',
+			'3',
+			'3',
+			'2',
+			'66.7'
+		]);
 	});
 
 	it('guards text a spreadsheet would run as a formula (OWASP, "CSV Injection")', () => {
-		const t = overviewTables({ part: '', meter: '', role: 'all', partsSort: 'part', metersSort: 'meter', peopleSort: 'name' }, [g({ partNumber: '=HYPERLINK("x")', tests: 1 })], [], []);
+		const t = overviewTables(
+			{
+				part: '',
+				meter: '',
+				role: 'all',
+				partsSort: 'part',
+				metersSort: 'meter',
+				peopleSort: 'name'
+			},
+			[g({ partNumber: '=HYPERLINK("x")', tests: 1 })],
+			[],
+			[]
+		);
 		expect(parseCsv(overviewCsv('parts', t, ',')).rows[1].cells[0]).toBe('\'=HYPERLINK("x")');
 	});
 });

@@ -21,10 +21,17 @@ import { Component, Customer, Job, SpecSheet, Test, User, Vehicle } from '../db/
 import { NotFoundError } from '../errors';
 import { toConflict } from '../sync/conflict-store';
 
-type ConflictRow = Parameters<typeof toConflict>[0] & { created_at: Date; settled_by?: string; settled_at?: Date; settled_value?: string; settled_note?: string | null };
+type ConflictRow = Parameters<typeof toConflict>[0] & {
+	created_at: Date;
+	settled_by?: string;
+	settled_at?: Date;
+	settled_value?: string;
+	settled_note?: string | null;
+};
 
 const iso = (d: Date | string | null | undefined) => (d ? new Date(d).toISOString() : null);
-const vehicleText = (v: { make: string; model: string; plate: string | null }) => [`${v.make} ${v.model}`, v.plate].filter(Boolean).join(' ');
+const vehicleText = (v: { make: string; model: string; plate: string | null }) =>
+	[`${v.make} ${v.model}`, v.plate].filter(Boolean).join(' ');
 
 /** Phones are numbered per person in the order first used (device ids are UUIDv7). */
 async function screenNames(actor: Actor) {
@@ -53,9 +60,16 @@ async function recordLabels(actor: Actor, refs: { entity: string; id: string }[]
 	const jobIds = [...ids('job'), ...tests.map((t) => t.jobId)];
 	const jobs = await Job.findAll({ where: { ...w, id: jobIds } });
 	const [vehicles, customers, components] = await Promise.all([
-		Vehicle.findAll({ where: { ...w, id: [...ids('vehicle'), ...jobs.flatMap((j) => (j.vehicleId ? [j.vehicleId] : []))] } }),
+		Vehicle.findAll({
+			where: {
+				...w,
+				id: [...ids('vehicle'), ...jobs.flatMap((j) => (j.vehicleId ? [j.vehicleId] : []))]
+			}
+		}),
 		Customer.findAll({ where: { ...w, id: ids('customer') } }),
-		Component.findAll({ where: { ...w, id: [...ids('component'), ...sheets.map((s) => s.componentId)] } })
+		Component.findAll({
+			where: { ...w, id: [...ids('component'), ...sheets.map((s) => s.componentId)] }
+		})
 	]);
 	const v = new Map(vehicles.map((x) => [x.id, x]));
 	const j = new Map(jobs.map((x) => [x.id, x]));
@@ -67,23 +81,34 @@ async function recordLabels(actor: Actor, refs: { entity: string; id: string }[]
 	};
 	const labels = new Map<string, { text: string; href: string | null }>();
 	for (const id of ids('job')) labels.set(id, { text: jobText(id), href: `/jobs/${id}` });
-	for (const x of vehicles) labels.set(x.id, { text: `Vehicle ${vehicleText(x)}`, href: `/vehicles/${x.id}` });
-	for (const x of customers) labels.set(x.id, { text: `Customer ${x.name}`, href: `/customers/${x.id}` });
+	for (const x of vehicles)
+		labels.set(x.id, { text: `Vehicle ${vehicleText(x)}`, href: `/vehicles/${x.id}` });
+	for (const x of customers)
+		labels.set(x.id, { text: `Customer ${x.name}`, href: `/customers/${x.id}` });
 	for (const x of tests)
-		labels.set(x.id, { text: `Test of ${x.partNumber ?? 'a part'} · ${jobText(x.jobId)}`, href: `/jobs/${x.jobId}#test-${x.id}` });
+		labels.set(x.id, {
+			text: `Test of ${x.partNumber ?? 'a part'} · ${jobText(x.jobId)}`,
+			href: `/jobs/${x.jobId}#test-${x.id}`
+		});
 	const c = new Map(components.map((x) => [x.id, x]));
-	for (const x of components) labels.set(x.id, { text: `Part ${x.partNumber}`, href: `/library/${x.id}` });
+	for (const x of components)
+		labels.set(x.id, { text: `Part ${x.partNumber}`, href: `/library/${x.id}` });
 	for (const x of sheets)
 		labels.set(x.id, {
 			text: `Spec sheet version ${x.sheetVersion} of ${c.get(x.componentId)?.partNumber ?? 'a part'}`,
 			href: `/library/${x.componentId}/sheets/${x.id}`
 		});
-	return (entity: string, id: string) => labels.get(id) ?? { text: `${ENTITY_WORDS[entity] ?? 'Record'} no longer on file`, href: null };
+	return (entity: string, id: string) =>
+		labels.get(id) ?? { text: `${ENTITY_WORDS[entity] ?? 'Record'} no longer on file`, href: null };
 }
 
 /** People, customers and vehicles that the clashing values name. */
-async function namesFor(actor: Actor, values: { kind: FieldKind; value: unknown }[]): Promise<Names> {
-	const ids = (k: FieldKind) => values.filter((x) => x.kind === k && typeof x.value === 'string').map((x) => x.value as string);
+async function namesFor(
+	actor: Actor,
+	values: { kind: FieldKind; value: unknown }[]
+): Promise<Names> {
+	const ids = (k: FieldKind) =>
+		values.filter((x) => x.kind === k && typeof x.value === 'string').map((x) => x.value as string);
 	const w = { workshopId: actor.workshopId };
 	const [users, customers, vehicles] = await Promise.all([
 		User.findAll({ where: w, attributes: ['id', 'name'] }),
@@ -98,13 +123,28 @@ async function namesFor(actor: Actor, values: { kind: FieldKind; value: unknown 
 }
 
 /** Who last changed each clashing field, from the audit log (when no phone stands behind it). */
-async function lastChanges(actor: Actor, list: { entity: string; entityId: string; field: string }[]) {
-	if (!list.length) return new Map<string, { user_id: string | null; device_id: string | null; at: Date }>();
-	const rows = await db().query<{ entity_id: string; field: string; user_id: string | null; device_id: string | null; at: Date }>(
+async function lastChanges(
+	actor: Actor,
+	list: { entity: string; entityId: string; field: string }[]
+) {
+	if (!list.length)
+		return new Map<string, { user_id: string | null; device_id: string | null; at: Date }>();
+	const rows = await db().query<{
+		entity_id: string;
+		field: string;
+		user_id: string | null;
+		device_id: string | null;
+		at: Date;
+	}>(
 		`SELECT a.entity_id, a.field, a.user_id, a.device_id, a.at FROM audit_log a
 		 WHERE a.entity IN (?) AND a.entity_id IN (?) AND a.workshop_id = ? AND a.field IN (?) ORDER BY a.id`,
 		{
-			replacements: [list.map((x) => x.entity), list.map((x) => x.entityId), actor.workshopId, list.map((x) => x.field)],
+			replacements: [
+				list.map((x) => x.entity),
+				list.map((x) => x.entityId),
+				actor.workshopId,
+				list.map((x) => x.field)
+			],
 			type: QueryTypes.SELECT
 		}
 	);
@@ -121,18 +161,40 @@ export async function listInbox(actor: Actor): Promise<ClashView[]> {
 	const kinds = list.map((c) => fieldWord(c.entity, c.field).kind);
 	const [screen, label, names, audit] = await Promise.all([
 		screenNames(actor),
-		recordLabels(actor, list.map((c) => ({ entity: c.entity, id: c.entityId }))),
-		namesFor(actor, list.flatMap((c, i) => [c.server.value, ...c.candidates.map((k) => k.value)].map((value) => ({ kind: kinds[i], value })))),
+		recordLabels(
+			actor,
+			list.map((c) => ({ entity: c.entity, id: c.entityId }))
+		),
+		namesFor(
+			actor,
+			list.flatMap((c, i) =>
+				[c.server.value, ...c.candidates.map((k) => k.value)].map((value) => ({
+					kind: kinds[i],
+					value
+				}))
+			)
+		),
 		lastChanges(actor, list)
 	]);
-	const who = (userId: string | null) => (userId ? (names.people.get(userId) ?? 'Someone no longer in the workshop') : 'Someone');
+	const who = (userId: string | null) =>
+		userId ? (names.people.get(userId) ?? 'Someone no longer in the workshop') : 'Someone';
 	return list.map((c, i) => {
 		const word = fieldWord(c.entity, c.field);
 		const last = audit.get(`${c.entityId}|${c.field}`);
 		const by: Edit[] = c.server.writers.length
-			? c.server.writers.map((w) => ({ who: who(w.userId), screen: screen(w.userId, w.deviceId), at: w.deviceTime }))
+			? c.server.writers.map((w) => ({
+					who: who(w.userId),
+					screen: screen(w.userId, w.deviceId),
+					at: w.deviceTime
+				}))
 			: last
-				? [{ who: who(last.user_id), screen: screen(last.user_id ?? '', last.device_id), at: iso(last.at) }]
+				? [
+						{
+							who: who(last.user_id),
+							screen: screen(last.user_id ?? '', last.device_id),
+							at: iso(last.at)
+						}
+					]
 				: [];
 		const rec = label(c.entity, c.entityId);
 		return {
@@ -165,10 +227,18 @@ export async function listSettled(actor: Actor, limit = 10) {
 	);
 	const list = rows.map((r) => ({ c: toConflict(r), r }));
 	const kinds = list.map(({ c }) => fieldWord(c.entity, c.field).kind);
-	const values = list.map(({ r }) => (r.settled_value == null ? null : JSON.parse(r.settled_value)));
+	const values = list.map(({ r }) =>
+		r.settled_value == null ? null : JSON.parse(r.settled_value)
+	);
 	const [label, names] = await Promise.all([
-		recordLabels(actor, list.map(({ c }) => ({ entity: c.entity, id: c.entityId }))),
-		namesFor(actor, values.map((value, i) => ({ kind: kinds[i], value })))
+		recordLabels(
+			actor,
+			list.map(({ c }) => ({ entity: c.entity, id: c.entityId }))
+		),
+		namesFor(
+			actor,
+			values.map((value, i) => ({ kind: kinds[i], value }))
+		)
 	]);
 	return list.map(({ c, r }, i) => ({
 		id: c.conflictId,
@@ -176,7 +246,9 @@ export async function listSettled(actor: Actor, limit = 10) {
 		href: label(c.entity, c.entityId).href,
 		fieldLabel: fieldWord(c.entity, c.field).label,
 		kept: valueText(kinds[i], values[i], names),
-		by: r.settled_by ? (names.people.get(r.settled_by) ?? 'Someone no longer in the workshop') : 'Someone',
+		by: r.settled_by
+			? (names.people.get(r.settled_by) ?? 'Someone no longer in the workshop')
+			: 'Someone',
 		at: iso(r.settled_at),
 		note: r.settled_note ?? null
 	}));

@@ -12,7 +12,13 @@
  * they cost nothing in the database. `npm run bench:overview` times this on 200,000 readings.
  */
 import { QueryTypes } from 'sequelize';
-import { bucketFor, overviewTables, type Bucket, type LeadPoint, type TestGroup } from '../../overview/tables';
+import {
+	bucketFor,
+	overviewTables,
+	type Bucket,
+	type LeadPoint,
+	type TestGroup
+} from '../../overview/tables';
 import { daysOf, overviewQuery, type OverviewQuery } from '../../schemas/overview';
 import type { Actor } from '../auth/types';
 import { db } from '../db';
@@ -31,7 +37,9 @@ export const OVERVIEW_SQL = {
 	WHERE t.workshop_id = ? AND t.created_at >= ? AND t.created_at < ?
 		AND t.deleted_at IS NULL AND t.state <> 'abandoned'
 	GROUP BY t.part_number, t.technician_id, t.state, t.meter_name`,
-	leadZero: (bucket: Bucket) => `SELECT t.meter_name, ${PERIOD[bucket]} AS period, COUNT(*) AS tests,
+	leadZero: (
+		bucket: Bucket
+	) => `SELECT t.meter_name, ${PERIOD[bucket]} AS period, COUNT(*) AS tests,
 		AVG(t.lead_ohms) AS avg_ohms, MIN(t.lead_ohms) AS min_ohms, MAX(t.lead_ohms) AS max_ohms
 	FROM tests t
 	WHERE t.workshop_id = ? AND t.created_at >= ? AND t.created_at < ?
@@ -75,7 +83,10 @@ export async function readOverview(actor: Actor, q: OverviewQuery, today = new D
 	const args = [actor.workshopId, start, end];
 	const [rows, leadRows, users] = await Promise.all([
 		db().query<GroupRow>(OVERVIEW_SQL.groups, { replacements: args, type: QueryTypes.SELECT }),
-		db().query<Record<string, unknown>>(OVERVIEW_SQL.leadZero(bucket), { replacements: args, type: QueryTypes.SELECT }),
+		db().query<Record<string, unknown>>(OVERVIEW_SQL.leadZero(bucket), {
+			replacements: args,
+			type: QueryTypes.SELECT
+		}),
 		User.findAll({ where: { workshopId: actor.workshopId }, attributes: ['id', 'name', 'role'] })
 	]);
 	const n = (v: unknown) => Number(v ?? 0);

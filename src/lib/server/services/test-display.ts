@@ -29,7 +29,10 @@ export async function jobTests(actor: Actor, jobId: string, locale = 'en-GB') {
 		where: { workshopId: actor.workshopId, jobId, deletedAt: { [Op.is]: null } },
 		order: [['createdAt', 'ASC']]
 	});
-	const tests = rows.map((r) => ({ ...testAggregate.toRecord(r as never), createdAt: r.get('createdAt') }));
+	const tests = rows.map((r) => ({
+		...testAggregate.toRecord(r as never),
+		createdAt: r.get('createdAt')
+	}));
 	const sheetIds = [...new Set(rows.flatMap((r) => (r.sheetId ? [r.sheetId] : [])))];
 	const [readings, sparks, swaps, sheets, users] = await Promise.all([
 		appendRows(actor, 'readings', 'reading', jobId),
@@ -43,7 +46,11 @@ export async function jobTests(actor: Actor, jobId: string, locale = 'en-GB') {
 		readings,
 		sparks,
 		swaps,
-		sheets: sheets.map((s) => ({ id: s.id, sheetVersion: s.sheetVersion, checks: s.checks as SheetChecks['checks'] })),
+		sheets: sheets.map((s) => ({
+			id: s.id,
+			sheetVersion: s.sheetVersion,
+			checks: s.checks as SheetChecks['checks']
+		})),
 		people: new Map(users.map((u) => [u.id, { name: u.name, role: u.role }])),
 		locale
 	});
@@ -51,10 +58,17 @@ export async function jobTests(actor: Actor, jobId: string, locale = 'en-GB') {
 
 /** One test of the workshop with its job's spark and swap tests (404 when not the actor's to open). */
 export async function oneTest(actor: Actor, testId: string, locale = 'en-GB') {
-	const row = await Test.findOne({ where: { id: testId, workshopId: actor.workshopId, deletedAt: { [Op.is]: null } } });
+	const row = await Test.findOne({
+		where: { id: testId, workshopId: actor.workshopId, deletedAt: { [Op.is]: null } }
+	});
 	if (!row) throw new NotFoundError('Test');
 	const all = await jobTests(actor, row.jobId, locale).catch((e) => {
 		throw e instanceof NotFoundError ? new NotFoundError('Test') : e;
 	});
-	return { jobId: row.jobId, test: all.tests.find((t) => t.id === testId)!, sparks: all.sparks, swaps: all.swaps };
+	return {
+		jobId: row.jobId,
+		test: all.tests.find((t) => t.id === testId)!,
+		sparks: all.sparks,
+		swaps: all.swaps
+	};
 }

@@ -61,7 +61,10 @@ export async function countOpen(actor: Actor): Promise<number> {
 /** The record again in the change feed at its current version (nothing about it changes). */
 async function resend(actor: Actor, entity: MutableEntity, id: string, t: Transaction) {
 	const { def } = AGGREGATES[entity];
-	const row = await def.model.findOne({ where: { id, workshopId: actor.workshopId }, transaction: t });
+	const row = await def.model.findOne({
+		where: { id, workshopId: actor.workshopId },
+		transaction: t
+	});
 	if (!row) return;
 	const r = row as never as { id: string; version: number; deletedAt: Date | null };
 	await appendChange(t, actor.workshopId, {
@@ -95,14 +98,18 @@ export async function settle(actor: Actor, id: string, input: unknown) {
 	const choice = settleInput.safeParse(input);
 	if (!choice.success) throw ValidationError.fromZod(choice.error);
 	return db().transaction(async (t) => {
-		const [row] = await db().query<Row>('SELECT * FROM conflicts WHERE id = ? AND workshop_id = ? FOR UPDATE', {
-			replacements: [id, actor.workshopId],
-			type: QueryTypes.SELECT,
-			transaction: t
-		});
+		const [row] = await db().query<Row>(
+			'SELECT * FROM conflicts WHERE id = ? AND workshop_id = ? FOR UPDATE',
+			{
+				replacements: [id, actor.workshopId],
+				type: QueryTypes.SELECT,
+				transaction: t
+			}
+		);
 		if (!row) throw new NotFoundError('Conflict');
 		const c = toConflict(row);
-		if (row.status !== 'open') throw new ValidationError({ _: 'Already settled' }, 'Someone settled this clash already');
+		if (row.status !== 'open')
+			throw new ValidationError({ _: 'Already settled' }, 'Someone settled this clash already');
 		const pick = choice.data;
 		if (pick.pick === 'candidate' && !c.candidates.some((k) => k.deviceId === pick.deviceId)) {
 			throw new ValidationError({ deviceId: 'No such candidate' });
@@ -115,12 +122,20 @@ export async function settle(actor: Actor, id: string, input: unknown) {
 					: c.candidates.find((k) => k.deviceId === pick.deviceId)?.value;
 		const entity = c.entity as MutableEntity;
 		const agg = AGGREGATES[entity];
-		const current = (await agg.read(actor, c.entityId, t).catch(() => null)) as { version: number } | null;
+		const current = (await agg.read(actor, c.entityId, t).catch(() => null)) as {
+			version: number;
+		} | null;
 		let record: Record<string, unknown> | null = current;
 		if (current && c.field === DELETED_FIELD && value === true) {
 			record = await agg.remove(actor, c.entityId, current.version, { transaction: t });
 		} else if (current && c.field !== DELETED_FIELD && pick.pick !== 'server') {
-			record = await agg.update(actor, c.entityId, current.version, { [c.field]: value }, { transaction: t });
+			record = await agg.update(
+				actor,
+				c.entityId,
+				current.version,
+				{ [c.field]: value },
+				{ transaction: t }
+			);
 		}
 		if (record && record.version === current?.version) await resend(actor, entity, c.entityId, t);
 		if (c.field !== DELETED_FIELD) await forgetWriters(entity, c.entityId, c.field, t);
@@ -128,7 +143,11 @@ export async function settle(actor: Actor, id: string, input: unknown) {
 		await db().query(
 			`UPDATE conflicts SET status = 'settled', settled_by = ?, settled_at = UTC_TIMESTAMP(3), settled_value = ?,
 			   settled_note = ?, updated_at = UTC_TIMESTAMP(3) WHERE id = ?`,
-			{ replacements: [actor.userId, JSON.stringify(value ?? null), noteText, id], type: QueryTypes.UPDATE, transaction: t }
+			{
+				replacements: [actor.userId, JSON.stringify(value ?? null), noteText, id],
+				type: QueryTypes.UPDATE,
+				transaction: t
+			}
 		);
 		await writeAudit(
 			t,
@@ -136,7 +155,19 @@ export async function settle(actor: Actor, id: string, input: unknown) {
 			'conflict',
 			id,
 			'settle',
-			[{ field: c.field, old: c.server.value ?? null, new: { entity, entityId: c.entityId, pick: pick.pick, value: value ?? null, note: noteText } }],
+			[
+				{
+					field: c.field,
+					old: c.server.value ?? null,
+					new: {
+						entity,
+						entityId: c.entityId,
+						pick: pick.pick,
+						value: value ?? null,
+						note: noteText
+					}
+				}
+			],
 			null
 		);
 		return { conflict: { ...c, status: 'settled' as const, note: noteText }, record };

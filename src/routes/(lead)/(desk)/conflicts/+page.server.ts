@@ -24,11 +24,19 @@ export const actions = {
 		if (!parsed.success) return failFrom(ValidationError.fromZod(parsed.error), values, 'settle');
 		try {
 			const at = await conflictField(actor, parsed.data.conflictId);
-			await settle(actor, parsed.data.conflictId, settleInputOf(parsed.data, fieldWord(at.entity, at.field).kind));
+			await settle(
+				actor,
+				parsed.data.conflictId,
+				settleInputOf(parsed.data, fieldWord(at.entity, at.field).kind)
+			);
 		} catch (e) {
 			// The record's own rules name its field (e.g. `status`): show that message at the value.
 			if (e instanceof ValidationError && !('choice' in e.fields) && !('_' in e.fields)) {
-				return fail(400, { action: 'settle', values, fields: { value: Object.values(e.fields)[0] } });
+				return fail(400, {
+					action: 'settle',
+					values,
+					fields: { value: Object.values(e.fields)[0] }
+				});
 			}
 			return failFrom(e, values, 'settle');
 		}

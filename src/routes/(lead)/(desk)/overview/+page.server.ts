@@ -14,6 +14,11 @@ export async function load(event) {
 	} catch (e) {
 		if (!(e instanceof ValidationError)) throw e;
 		const query = parseOverviewQuery({});
-		return { title: 'Overview', query, overview: await readOverview(actor, query), problems: e.fields };
+		return {
+			title: 'Overview',
+			query,
+			overview: await readOverview(actor, query),
+			problems: e.fields
+		};
 	}
 }

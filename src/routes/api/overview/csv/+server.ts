@@ -17,7 +17,11 @@ export const GET = api(
 		const csv = overviewCsvQuery.safeParse({ table, delimiter });
 		if (!csv.success) throw ValidationError.fromZod(csv.error);
 		const overview = await readOverview(actorOf(user), parseOverviewQuery(rest));
-		const text = overviewCsv(csv.data.table, overview, csv.data.delimiter === 'semicolon' ? ';' : ',');
+		const text = overviewCsv(
+			csv.data.table,
+			overview,
+			csv.data.delimiter === 'semicolon' ? ';' : ','
+		);
 		return new Response(text, {
 			headers: {
 				'content-type': 'text/csv; charset=utf-8',
