@@ -63,18 +63,18 @@ describe('a clash settled at the desk', () => {
 		}
 		await one.page.getByLabel('Status').selectOption('awaiting_parts');
 		await two.page.getByLabel('Status').selectOption('no_fault_found');
+		// The first phone gets signal (and sends) first, then the second.
 		for (const phone of [one, two]) {
 			await expect
 				.poll(() => phone.page.getByTestId('sync-badge').textContent())
 				.toContain('1 waiting to send');
 			await phone.context.setOffline(false);
+			await syncNow(phone.page);
 		}
-		await syncNow(one.page);
-		await syncNow(two.page);
 		// A sync already running in the background may have sent it: read the list afresh.
 		await two.page.goto(`${base}/field/sync`);
 		await expect
-			.poll(() => two.page.getByTestId('issues').textContent())
+			.poll(() => two.page.getByTestId('issues').innerText())
 			.toContain('two edits clash');
 		await shot(two.page, 'lead-desk-1-phone-clash');
 	});
@@ -86,7 +86,7 @@ describe('a clash settled at the desk', () => {
 		await card.waitFor();
 		expect(await card.getByTestId('stored-value').textContent()).toBe('Awaiting parts');
 		expect(await card.getByTestId('phone-value').textContent()).toBe('No fault found');
-		expect(await card.textContent()).toContain(`${TECH.name} · phone`);
+		expect(await card.innerText()).toContain(`${TECH.name} · phone`);
 		expect(
 			Number(
 				await page
@@ -106,7 +106,7 @@ describe('a clash settled at the desk', () => {
 		await card.getByLabel(/^Note/).fill('Road-tested 20 km with the customer: no cut-out');
 		await card.getByRole('button', { name: 'Settle this clash' }).click();
 		await expect
-			.poll(() => page.getByTestId('settled-message').textContent())
+			.poll(() => page.getByTestId('settled-message').innerText())
 			.toContain('is now “No fault found”');
 		expect(
 			await page
@@ -114,7 +114,7 @@ describe('a clash settled at the desk', () => {
 				.filter({ hasText: `Job ${jobNumber}` })
 				.count()
 		).toBe(0);
-		expect(await page.getByTestId('settled').textContent()).toContain(
+		expect(await page.getByTestId('settled').innerText()).toContain(
 			'Road-tested 20 km with the customer'
 		);
 		await shot(page, 'lead-desk-3-settled');
@@ -196,7 +196,7 @@ describe('the lead’s pages', () => {
 		await syncNow(one.page);
 		await openJob(one.page);
 		await one.page.getByTestId('test-detail').waitFor();
-		expect(await one.page.getByTestId('test-detail').textContent()).toContain('They differ');
+		expect(await one.page.getByTestId('test-detail').innerText()).toContain('They differ');
 		await expectAccessible(one.page, 'the phone job page');
 		await shot(one.page, 'lead-desk-6-phone-test');
 	});
