@@ -125,6 +125,13 @@ export function parseCsv(
 	return { delimiter, rows, problems };
 }
 
+/**
+ * Text a spreadsheet would run as a formula (starting with = + - @, a tab or a carriage
+ * return) gets a leading `'` on the way out (OWASP, "CSV Injection"); `unguardFormula` undoes it.
+ */
+export const guardFormula = (s: string) => (/^'*[=+\-@\t\r]/.test(s) ? `'${s}` : s);
+export const unguardFormula = (s: string) => (/^'+[=+\-@\t\r]/.test(s) ? s.slice(1) : s);
+
 function quote(cell: string, delimiter: Delimiter): string {
 	const needs = cell.includes(delimiter) || /["\r\n]/.test(cell) || cell !== cell.trim();
 	return needs ? `"${cell.replaceAll('"', '""')}"` : cell;

@@ -44,7 +44,7 @@ const EVERYONE = ROLES;
 const LEADS: readonly Role[] = ['lead', 'owner'];
 
 /** The lead's desk (the clash inbox and the overview) is switched on with its pages. */
-export const FEATURES: Readonly<Record<NavFeature, boolean>> = { 'lead-desk': false };
+export const FEATURES: Readonly<Record<NavFeature, boolean>> = { 'lead-desk': true };
 
 export const NAV: readonly NavEntry[] = [
 	{ label: 'Jobs', href: '/jobs', roles: EVERYONE, icon: 'jobs' },

@@ -218,5 +218,13 @@ describe('the test flow', () => {
 		await page.goto(testUrl);
 		await expect.poll(() => page.getByTestId('server-check').textContent()).toContain('server came to the same results (8 readings)');
 		await shot(page, 'capture-7-checked-by-server');
+		// The job page shows the whole test, each reading with the workshop's check beside the phone's.
+		await page.goto(`${base}/field/job/${JOB}`);
+		const detail = page.getByTestId('test-detail').first();
+		await expect.poll(() => detail.getByTestId('reading').count()).toBe(8);
+		expect(await detail.getByTestId('reading').filter({ hasText: 'Not checked yet' }).count()).toBe(0);
+		expect(await detail.locator('[data-differ=yes]').count()).toBe(0);
+		expect(await page.getByTestId('sparks').textContent()).toContain('Weak spark');
+		expect(await page.getByTestId('swaps').textContent()).toContain('followed the coil');
 	});
 });

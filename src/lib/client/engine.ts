@@ -8,7 +8,8 @@
  * push with that entry still at the head; a 401 pauses until the user signs in again and
  * never drops anything; a 413 halves the batch.
  * Pull: from the stored cursor until `more` is false; upserts keep local unsent fields on
- * top; `evict` removes a job and everything under it.
+ * top; `evict` removes a job and everything under it. Then the clashes the lead has settled
+ * since are dropped from what needs attention.
  * One tab at a time (navigator.locks, when there is one). Never awaits the network inside
  * an IndexedDB transaction.
  */
@@ -40,6 +41,7 @@ export class SyncEngine {
 		try {
 			pushed = await this.pushAll();
 			pulled = await this.pullAll();
+			await this.forgetSettledClashes();
 			await setMeta(this.db, 'lastSyncAt', new Date().toISOString());
 			return { state: 'idle', pushed, pulled, ...(await this.counts()) };
 		} catch (e) {
@@ -117,6 +119,24 @@ export class SyncEngine {
 			await tx.objectStore('issues').put({ opId: op.opId, op, result, kind, at: new Date().toISOString(), seen: false, ...(before ? { before } : {}) });
 		}
 		await tx.objectStore('outbox').delete(entry.seq!);
+		await tx.done;
+	}
+
+	/**
+	 * Drop the clashes the lead has settled from what needs attention (the settled value
+	 * itself arrives with the pull). Asked only when some are kept; an answer without the
+	 * list changes nothing.
+	 */
+	async forgetSettledClashes(): Promise<void> {
+		const clashes = (await this.db.getAll('issues')).filter((i) => i.kind === 'conflict' && i.result.conflictId);
+		if (!clashes.length) return;
+		const ids = [...new Set(clashes.map((i) => i.result.conflictId!))].slice(0, 100);
+		const r = await this.call(`/api/conflicts/open?ids=${ids.join(',')}`);
+		if (!r.ok) return;
+		const open = ((await r.json().catch(() => ({}))) as { open?: unknown }).open;
+		if (!Array.isArray(open)) return;
+		const tx = this.db.transaction('issues', 'readwrite');
+		for (const i of clashes) if (ids.includes(i.result.conflictId!) && !open.includes(i.result.conflictId)) await tx.store.delete(i.opId);
 		await tx.done;
 	}
 

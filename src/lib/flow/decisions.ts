@@ -60,13 +60,17 @@ export function cautionsFor(step: Step, { hybrid }: { hybrid: boolean }) {
 	return { list, needsTap: hybrid || step === 'spark' };
 }
 
+/** Whether a range can tell a reading from the limits of every band that applies. */
+export function rangeResolves(range: MeterRange, bands: readonly SpecBand[]): boolean {
+	return bands.every((b) => canResolve(range, b));
+}
+
 /**
  * A warning before any reading when the range cannot resolve the check's limits in any
  * band that applies, with what to do; null when it can.
  */
 export function rangeWarning(range: MeterRange & { label?: string }, bands: readonly SpecBand[]): string | null {
-	const bad = bands.filter((b) => !canResolve(range, b));
-	if (!bad.length) return null;
+	if (rangeResolves(range, bands)) return null;
 	return `The ${range.label ?? 'chosen'} range cannot tell a reading from this spec’s limits. Switch to a lower range with a finer resolution, or use the four-wire method.`;
 }
 

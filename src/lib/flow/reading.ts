@@ -11,6 +11,7 @@ import { compensateLeads, isBadZero, pickSettled, uncertainty, type MeterRange }
 import { judge, type Judgement, type SpecBand, type Verdict } from '../domain/spec';
 import { bandFor } from '../domain/temperature';
 import { toBase } from '../domain/units';
+import { rangeResolves } from './decisions';
 
 export type Sample = { value: number | 'OL'; unit: string };
 export type CheckSpec = {
@@ -93,6 +94,20 @@ export function evaluateReading(
 	const verdicts = new Set(bands.map((b) => b.verdict));
 	const verdict = bands.length === 0 ? 'no_spec' : verdicts.size === 1 ? bands[0].verdict : 'depends';
 	return { value, settleMode: pick.mode, suspects: pick.suspects, badZero, u, bands, verdict };
+}
+
+/**
+ * Whether the range a reading was taken on could not tell it from the limits of the bands
+ * that apply at the test's temperature — the case the capture screen warns about before
+ * a reading. Stored with each reading for the lead's overview.
+ */
+export function rangeUnresolvedOf(
+	check: Pick<CheckSpec, 'bands'>,
+	meter: MeterSetupLike | null | undefined,
+	rangeLabel: string | null | undefined,
+	temperature: TemperatureSnapshot
+): boolean {
+	return !rangeResolves(meterFor(meter, rangeLabel), bandsFor(check.bands, temperature));
 }
 
 /** Whether two results say the same thing (value within 1e-9 relative, same verdicts). */

@@ -17,7 +17,7 @@
  * "CSV Injection") and read back without it. Pure: parsing and validation, no database.
  */
 import { parseDecimal } from '../domain/units';
-import { parseCsv, writeCsv, type Delimiter } from '../csv';
+import { guardFormula, parseCsv, unguardFormula, writeCsv, type Delimiter } from '../csv';
 import { componentCreate, sheetCreate, type Check, type ComponentKind } from '../schemas/component';
 import { limitFromBase, limitToBase, plainNumber } from './limits';
 
@@ -100,8 +100,8 @@ const TEXT_COLUMNS = new Set<CsvColumn>([
 	'terminal_to',
 	'range_hint'
 ]);
-const guard = (s: string) => (/^'*[=+\-@\t\r]/.test(s) ? `'${s}` : s);
-const unguard = (s: string) => (/^'+[=+\-@\t\r]/.test(s) ? s.slice(1) : s);
+const guard = guardFormula;
+const unguard = unguardFormula;
 
 /** A component as the library stores it (the API's record, limits in base units). */
 export type LibraryComponent = {

@@ -101,6 +101,26 @@ describe('the sync client', () => {
 		expect((await getRecord(db, 'customer', e.op.entityId))?.version).toBe(3);
 	});
 
+	it('keeps a clash in what needs attention while the lead has not settled it, and drops it once settled', async () => {
+		const db = await dbWithOps(1);
+		const [e] = await listOutbox(db);
+		const conflictId = uuidv7();
+		let open = true;
+		const s = fakeServer((url) =>
+			url.includes('push')
+				? json(200, { results: [{ opId: e.op.opId, status: 'conflict', version: 2, conflictId }] })
+				: url.includes('/api/conflicts/open')
+					? json(200, { open: open ? [conflictId] : [] })
+					: emptyPull()
+		);
+		const engine = new SyncEngine(db, 'dev-1', s.fetcher);
+		expect((await engine.syncOnce()).issues).toBe(1);
+		expect(s.calls.some((c) => c.url === `/api/conflicts/open?ids=${conflictId}`)).toBe(true);
+		open = false;
+		expect((await engine.syncOnce()).issues).toBe(0);
+		expect(await db.count('issues')).toBe(0);
+	});
+
 	it('pulls every page, stores the cursor, and keeps unsent local edits on top', async () => {
 		const db = await openLocalDb(uuidv7());
 		const jobId = uuidv7();

@@ -39,7 +39,18 @@ export function appendRecord(entity: string, row: Record<string, unknown>): Reco
 	const out: Record<string, unknown> = { entity };
 	for (const [k, v] of Object.entries(row)) {
 		if (HIDDEN.has(k)) continue;
-		out[camel(k)] = JSON_COLUMNS.has(k) && typeof v === 'string' ? parseNumbers(v) : k === 'mismatch' ? Boolean(v) : k === 'gap_mm' ? Number(v) : v;
+		out[camel(k)] =
+			JSON_COLUMNS.has(k) && typeof v === 'string'
+				? parseNumbers(v)
+				: k === 'mismatch'
+					? Boolean(v)
+					: k === 'range_unresolved'
+						? v == null
+							? null
+							: Boolean(v)
+						: k === 'gap_mm'
+							? Number(v)
+							: v;
 	}
 	out.version = 1;
 	return out;

@@ -79,3 +79,9 @@ export async function listUsers(workshopId: string) {
 		active: u.active
 	}));
 }
+
+/** Names and roles of the workshop's people (no e-mail), for showing who did what. */
+export async function listPeople(workshopId: string) {
+	const rows = await User.findAll({ where: { workshopId }, attributes: ['id', 'name', 'role'], order: [['name', 'ASC']] });
+	return rows.map((u) => ({ id: u.id, name: u.name, role: u.role }));
+}

@@ -16,7 +16,8 @@
  * the commit.
  */
 import type { Transaction } from 'sequelize';
-import { evaluateReading, meterFor, sameResult, type CheckSpec, type TemperatureSnapshot } from '../../flow/reading';
+import { bandsFor, evaluateReading, meterFor, sameResult, type CheckSpec, type TemperatureSnapshot } from '../../flow/reading';
+import { rangeResolves } from '../../flow/decisions';
 import { readingCreate, signoffCreate, sparkTestCreate, swapTestCreate } from '../../schemas/records';
 import type { Op, PushResult, Reason } from '../../sync/protocol';
 import { stringifyNumbers } from '../../sync/json';
@@ -54,7 +55,15 @@ const meterOf = (test: TestInfo, rangeLabel: string | null) => {
  * values of `COLUMNS[table]` in that order (the creation time is the server's). `same` is what makes a repeated create of a reading the
  * same record (its check and samples).
  */
-type Prepared = { op: Op; table: AppendTable; row: unknown[]; same: string; mismatch?: { device: string; server: string } };
+type Prepared = {
+	op: Op;
+	table: AppendTable;
+	row: unknown[];
+	same: string;
+	mismatch?: { device: string; server: string };
+	/** A reading's part in its test's summary (`test_summaries`). */
+	summary?: { testId: string; verdict: string; unresolved: 0 | 1 | null };
+};
 
 /** The first columns of every append-only row. */
 const BASE = ['workshop_id', 'id', 'op_id', 'created_by', 'device_id', 'device_time', 'job_id', 'test_id'] as const;
@@ -63,7 +72,7 @@ const BASE = ['workshop_id', 'id', 'op_id', 'created_by', 'device_id', 'device_t
  * building a 15-key object by spreading another costs more than the rest of a reading.
  */
 const COLUMNS: Record<AppendTable, readonly string[]> = {
-	readings: [...BASE, 'check_key', 'position', 'samples', 'range_label', 'device_result', 'server_result', 'mismatch'],
+	readings: [...BASE, 'check_key', 'position', 'samples', 'range_label', 'device_result', 'server_result', 'mismatch', 'server_verdict', 'range_unresolved'],
 	signoffs: [...BASE, 'mode', 'note'],
 	spark_tests: [...BASE, 'note', 'position', 'gap_mm', 'outcome'],
 	swap_tests: [...BASE, 'note', 'from_position', 'to_position', 'before_counts', 'after_counts', 'conclusion']
@@ -159,15 +168,19 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 			const check = checks?.find((c) => c.key === f.checkKey);
 			if (checks && !check) return reject(op, 'invalid', `checkKey: no check ${f.checkKey} on the pinned sheet`);
 			const spec = check ?? { key: f.checkKey as string, quantity: 'resistance', unit: 'Ω', openOk: false, bands: [] };
-			const server = evaluateReading(spec, f.samples as never, meterOf(test, (f.rangeLabel as string | null | undefined) ?? null), test.tempSnap);
+			const meter = meterOf(test, (f.rangeLabel as string | null | undefined) ?? null);
+			const server = evaluateReading(spec, f.samples as never, meter, test.tempSnap);
 			const device = f.deviceResult as { value: number | null; verdict: string } | null | undefined;
 			const mismatch = device != null && !sameResult(device as never, server);
+			// Whether the range could tell a reading from the limits (unknown with no pinned sheet).
+			const unresolved: 0 | 1 | null = check ? (rangeResolves(meter, bandsFor(check.bands, test.tempSnap)) ? 0 : 1) : null;
 			const samples = JSON.stringify(f.samples);
 			const prepared: Prepared = {
 				op,
 				table: 'readings',
-				row: row(test.job_id, test.id, f.checkKey, f.position ?? null, samples, f.rangeLabel ?? null, device ? toJson(device) : null, toJson(server), mismatch ? 1 : 0),
-				same: `${f.checkKey}|${samples}`
+				row: row(test.job_id, test.id, f.checkKey, f.position ?? null, samples, f.rangeLabel ?? null, device ? toJson(device) : null, toJson(server), mismatch ? 1 : 0, server.verdict, unresolved),
+				same: `${f.checkKey}|${samples}`,
+				summary: { testId: test.id, verdict: server.verdict, unresolved }
 			};
 			if (mismatch) prepared.mismatch = { device: String(device!.verdict), server: server.verdict };
 			return prepared;
@@ -220,6 +233,39 @@ function insertRows(table: AppendTable, rows: { place: number; row: unknown[] }[
 			rows.map((r) => r.row)
 		);
 	};
+}
+
+/**
+ * Add the readings to their tests' summaries (what the lead's overview reads): one
+ * statement, rows in test id order so that two pushes lock them in the same order.
+ */
+async function addToSummaries(ok: Prepared[], { actor, t }: Ctx) {
+	const per = new Map<string, number[]>();
+	for (const p of ok) {
+		if (!p.summary) continue;
+		const { testId, verdict, unresolved } = p.summary;
+		const s = per.get(testId) ?? [0, 0, 0, 0, 0, 0];
+		s[0]++;
+		if (verdict === 'low' || verdict === 'high') s[1]++;
+		else if (verdict === 'borderline' || verdict === 'depends') s[2]++;
+		else if (verdict === 'within') s[3]++;
+		if (unresolved !== null) {
+			s[4] += unresolved;
+			s[5]++;
+		}
+		per.set(testId, s);
+	}
+	if (!per.size) return;
+	const rows = [...per].sort(([a], [b]) => (a < b ? -1 : 1));
+	await rawQuery(
+		t,
+		`INSERT INTO test_summaries (test_id, workshop_id, readings, out_of_spec, cant_tell, ok, unresolved, range_known)
+		 VALUES ${rows.map(() => '(?, ?, ?, ?, ?, ?, ?, ?)').join(', ')}
+		 ON DUPLICATE KEY UPDATE readings = readings + VALUES(readings), out_of_spec = out_of_spec + VALUES(out_of_spec),
+		   cant_tell = cant_tell + VALUES(cant_tell), ok = ok + VALUES(ok), unresolved = unresolved + VALUES(unresolved),
+		   range_known = range_known + VALUES(range_known)`,
+		rows.flatMap(([testId, s]) => [testId, actor.workshopId, ...s])
+	);
 }
 
 /**
@@ -304,6 +350,7 @@ export async function insertAppendOps(
 		const byTable = groupByTable(ok.map((p, place) => ({ p, place })), (x) => x.p.table, (x) => ({ place: x.place, row: x.p.row }));
 		const inserts = [...byTable].map(([table, rows]) => insertRows(table, rows, ctx));
 		const mism = ok.filter((p) => p.mismatch);
+		await addToSummaries(ok, ctx);
 		// The counter row stays locked from here to the commit: only the INSERTs remain.
 		const first = await nextSeq(t, actor.workshopId, ok.length);
 		for (const run of inserts) await run(first);

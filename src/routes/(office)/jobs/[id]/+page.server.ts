@@ -10,6 +10,7 @@ import { mailConfig } from '$lib/server/mail/config';
 import { mayChangeReportSettings, mayReadCaughtMail, maySendReport, mayWithdrawReport } from '$lib/server/reports/rules';
 import { reportsOfJob, withdrawReport } from '$lib/server/reports/service';
 import { readReportSettings } from '$lib/server/reports/settings';
+import { jobTests } from '$lib/server/services/test-display';
 import { jobFormOptions } from '../../options.server';
 
 const listOf = (fd: FormData): CodeList => (fd.get('list') === 'after' ? 'after' : 'before');
@@ -23,10 +24,12 @@ export async function load(event) {
 		if (e instanceof NotFoundError) error(404, 'No such job, or it is not assigned to you');
 		throw e;
 	});
+	const [history, tests] = await Promise.all([jobs.statusHistory(actor, id), jobTests(actor, id)]);
 	return {
 		title: `Job ${job.number}`,
 		job,
-		history: await jobs.statusHistory(actor, id),
+		history,
+		tests,
 		next: NEXT_STATUS[job.status],
 		reports: {
 			list: await reportsOfJob(actor, id),

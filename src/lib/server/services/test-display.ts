@@ -1,0 +1,75 @@
+/**
+ * A job's tests for the office page and the JSON API: the same records the phones pull
+ * (tests through their aggregate, append-only rows as the feed sends them), drawn by the
+ * shared `buildJobTests`. Whoever may open the job may read its tests (leads: every job).
+ */
+import { QueryTypes } from 'sequelize';
+import { Op } from 'sequelize';
+import { buildJobTests, type SheetChecks } from '../../tests/view';
+import type { Actor } from '../auth/types';
+import { db } from '../db';
+import { SpecSheet, Test, User } from '../db/models';
+import { NotFoundError } from '../errors';
+import { appendRecord } from '../db/append-tables';
+import { seenJob } from './rules';
+import { tests as testAggregate } from './tests';
+
+/** Every row of an append-only table under one job, oldest first, as the feed sends it. */
+async function appendRows(actor: Actor, table: string, entity: string, jobId: string) {
+	const rows = await db().query<Record<string, unknown>>(
+		`SELECT * FROM ${table} WHERE job_id = ? AND workshop_id = ? ORDER BY seq`,
+		{ replacements: [jobId, actor.workshopId], type: QueryTypes.SELECT }
+	);
+	return rows.map((r) => appendRecord(entity, r));
+}
+
+/** The tests, spark tests and swap tests of a job the actor may open (404 otherwise). */
+export async function jobTests(actor: Actor, jobId: string, locale = 'en-GB') {
+	await seenJob(actor, jobId);
+	const rows = await Test.findAll({
+		where: { workshopId: actor.workshopId, jobId, deletedAt: { [Op.is]: null } },
+		order: [['createdAt', 'ASC']]
+	});
+	const tests = rows.map((r) => ({
+		...testAggregate.toRecord(r as never),
+		createdAt: r.get('createdAt')
+	}));
+	const sheetIds = [...new Set(rows.flatMap((r) => (r.sheetId ? [r.sheetId] : [])))];
+	const [readings, sparks, swaps, sheets, users] = await Promise.all([
+		appendRows(actor, 'readings', 'reading', jobId),
+		appendRows(actor, 'spark_tests', 'spark_test', jobId),
+		appendRows(actor, 'swap_tests', 'swap_test', jobId),
+		SpecSheet.findAll({ where: { workshopId: actor.workshopId, id: sheetIds } }),
+		User.findAll({ where: { workshopId: actor.workshopId }, attributes: ['id', 'name', 'role'] })
+	]);
+	return buildJobTests({
+		tests,
+		readings,
+		sparks,
+		swaps,
+		sheets: sheets.map((s) => ({
+			id: s.id,
+			sheetVersion: s.sheetVersion,
+			checks: s.checks as SheetChecks['checks']
+		})),
+		people: new Map(users.map((u) => [u.id, { name: u.name, role: u.role }])),
+		locale
+	});
+}
+
+/** One test of the workshop with its job's spark and swap tests (404 when not the actor's to open). */
+export async function oneTest(actor: Actor, testId: string, locale = 'en-GB') {
+	const row = await Test.findOne({
+		where: { id: testId, workshopId: actor.workshopId, deletedAt: { [Op.is]: null } }
+	});
+	if (!row) throw new NotFoundError('Test');
+	const all = await jobTests(actor, row.jobId, locale).catch((e) => {
+		throw e instanceof NotFoundError ? new NotFoundError('Test') : e;
+	});
+	return {
+		jobId: row.jobId,
+		test: all.tests.find((t) => t.id === testId)!,
+		sparks: all.sparks,
+		swaps: all.swaps
+	};
+}
