@@ -6,6 +6,7 @@
  * or null when the role may.
  */
 import { isLead, type Role } from './roles';
+import { isSignedOff, type SignOffDecision, type SignOffKind } from './tests/signoff';
 
 type Who = { role: Role | string };
 
@@ -48,7 +49,91 @@ export function seesJob(who: Who & { userId: string }, job: { assigneeId?: unkno
 	return isLead(who) || job.assigneeId === who.userId;
 }
 
-/** Sign-offs of apprentice work: workshop leads and owners only. */
-export function refuseSignOff(who: Who): string | null {
-	return isLead(who) ? null : 'Only a workshop lead or owner can sign off a test';
+/**
+ * Signing off apprentice work, or sending it back: workshop leads and owners only; only a
+ * test an apprentice started needs it (`test`, when known: whether it needs one and where it
+ * stands); a signed test is not signed again, nor a test waiting for the apprentice sent
+ * back again.
+ */
+export function refuseSignOff(
+	who: Who,
+	test?: { needsSignOff: boolean; signOff: SignOffKind },
+	decision: SignOffDecision = 'signed'
+): string | null {
+	if (!isLead(who))
+		return decision === 'signed'
+			? 'Only a workshop lead or owner can sign off a test'
+			: 'Only a workshop lead or owner can send a test back';
+	if (!test) return null;
+	if (!test.needsSignOff) return 'Only a test done by an apprentice needs a sign-off';
+	if (test.signOff === 'not_needed') return 'This test was abandoned, so there is nothing to sign off';
+	if (decision === 'signed' && test.signOff === 'signed') return 'This test is already signed off';
+	if (decision === 'sent_back' && test.signOff === 'sent_back')
+		return 'This test is already sent back and waits for the apprentice';
+	return null;
 }
+
+/** A test of a job as the closing rules read it. */
+export type ClosingTest = {
+	id: string;
+	partNumber: string | null;
+	/** The cylinders or coil positions it covers. */
+	positions: string[];
+	state: string;
+	/** The first test this one re-tests after the repair (null: a first test). */
+	retestOf: string | null;
+	signOff: SignOffKind;
+	/**
+	 * Checks read (one per check and position, the latest reading of each), and how many of
+	 * those the workshop judged under or over spec.
+	 */
+	readings: number;
+	outOfSpec: number;
+};
+/** What a job's status rules read: its live tests (oldest first) and its open clashes. */
+export type JobFacts = { tests: ClosingTest[]; openClashes: number };
+
+const partOf = (t: ClosingTest) =>
+	`${t.partNumber ?? 'the part'}${t.positions.length ? ` (${t.positions.length > 1 ? 'cylinders' : 'cylinder'} ${t.positions.join(', ')})` : ''}`;
+
+/**
+ * "Re-tested OK" needs a finished re-test after the repair — a test started with Re-test
+ * from the first test of the same part and positions — and the latest re-test of each part
+ * reads nothing out of spec. Said in one sentence.
+ */
+export function refuseRetestedOk(f: JobFacts): string | null {
+	const retests = f.tests.filter((t) => t.retestOf && t.state !== 'abandoned');
+	if (!retests.length)
+		return 'Re-tested OK needs a re-test after the repair: open the first test of the repaired part and press Re-test.';
+	const latest = new Map<string, ClosingTest>();
+	for (const t of retests) if (t.state === 'done' && t.readings > 0) latest.set(t.retestOf!, t);
+	if (!latest.size) return `Finish the re-test of ${partOf(retests[retests.length - 1])} first.`;
+	const bad = [...latest.values()].find((t) => t.outOfSpec > 0);
+	if (bad) return `The re-test of ${partOf(bad)} still reads out of spec, so the job is not re-tested OK.`;
+	return null;
+}
+
+/**
+ * "Closed" needs no open clash on the job (the job itself or its tests) and every test an
+ * apprentice did signed off. What is missing is said in one sentence.
+ */
+export function refuseClose(f: JobFacts): string | null {
+	const unsigned = f.tests.filter((t) => !isSignedOff(t.signOff)).length;
+	const missing: string[] = [];
+	const n = (k: number, one: string, many: string) => (k === 1 ? `one ${one}` : `${k} ${many}`);
+	if (f.openClashes)
+		missing.push(`${n(f.openClashes, 'clash on it is', 'clashes on it are')} still open in the clash inbox`);
+	if (unsigned)
+		missing.push(`${n(unsigned, 'test by an apprentice is', 'tests by an apprentice are')} not signed off yet`);
+	return missing.length ? `The job cannot be closed yet: ${missing.join(' and ')}.` : null;
+}
+
+/** The closing rules of a move to `to` (other statuses have none). */
+export function refuseStatusFacts(to: string, f: JobFacts): string | null {
+	if (to === 'retested_ok') return refuseRetestedOk(f);
+	if (to === CLOSED) return refuseClose(f);
+	return null;
+}
+
+/** Whether a move to `to` needs the job's facts (tests, sign-offs, clashes). */
+export const needsJobFacts = (to: unknown) => to === 'retested_ok' || to === CLOSED;

@@ -1,6 +1,7 @@
 /** Append-only records made on the phone: readings, spark tests, swap tests, sign-offs. */
 import { z } from 'zod';
 import { optionalText, uuidRef } from './common';
+import { SIGNOFF_DECISIONS, SIGNOFF_MODES } from '../tests/signoff';
 
 export const sample = z.object({
 	value: z.union([z.number().finite(), z.literal('OL')]),
@@ -43,8 +44,34 @@ export const swapTestCreate = z.object({
 	note: optionalText(500)
 });
 
-export const signoffCreate = z.object({
-	testId: uuidRef,
-	mode: z.enum(['witnessed', 'remote']),
-	note: optionalText(500)
-});
+/** A send-back always says what the apprentice should do again. */
+function noteWhenSentBack(v: { decision: string; note?: string | null }, ctx: z.RefinementCtx) {
+	if (v.decision === 'sent_back' && !v.note)
+		ctx.addIssue({
+			code: 'custom',
+			path: ['note'],
+			message: 'Say what the apprentice should do again'
+		});
+}
+
+/**
+ * A lead's decision on an apprentice's test: signed off (the default), or sent back with a
+ * note the apprentice sees on the job. Who decided is the signed-in user, never a field.
+ */
+export const signoffCreate = z
+	.object({
+		testId: uuidRef,
+		mode: z.enum(SIGNOFF_MODES),
+		decision: z.enum(SIGNOFF_DECISIONS).default('signed'),
+		note: optionalText(500)
+	})
+	.superRefine(noteWhenSentBack);
+
+/** The same decision made at the desk (`POST /api/tests/:id/signoff`, the job page's form). */
+export const signoffDecision = z
+	.object({
+		mode: z.enum(SIGNOFF_MODES).default('remote'),
+		decision: z.enum(SIGNOFF_DECISIONS, { error: 'Sign it off or send it back' }).default('signed'),
+		note: optionalText(500)
+	})
+	.superRefine(noteWhenSentBack);

@@ -45,6 +45,11 @@ export const testCreate = z.object({
 	meter: meterSnapshot.nullable().optional(),
 	temperature: temperatureSnapshot.nullable().optional(),
 	state: z.enum(['in_progress', 'done', 'abandoned']).default('in_progress'),
-	notes: optionalText(5000)
+	notes: optionalText(5000),
+	/**
+	 * A re-test after the repair: the first test of the same part and positions on the same
+	 * job (set when the re-test starts, never changed after).
+	 */
+	retestOf: uuidRef.nullable().optional()
 });
-export const testPatch = testCreate.omit({ jobId: true }).partial();
+export const testPatch = testCreate.omit({ jobId: true, retestOf: true }).partial();

@@ -50,6 +50,8 @@ export const TEST_FIELDS = [
 	'partNumber',
 	'position',
 	'technicianId',
+	'needsSignOff',
+	'retestOf',
 	'meter',
 	'temperature',
 	'state',
@@ -89,5 +91,7 @@ export const testRecord = (r: Row) => ({
 	id: r.id,
 	version: r.version,
 	...pick(r, TEST_FIELDS, false),
+	needsSignOff: Boolean(r.get('needsSignOff')),
+	retestOf: r.get('retestOf') ?? null,
 	deleted: r.deletedAt != null
 });

@@ -12,6 +12,10 @@ export class Test extends Model {
 	declare partNumber: string | null;
 	declare position: string | null;
 	declare technicianId: string | null;
+	/** An apprentice started it: a lead or owner signs it off (set by the server). */
+	declare needsSignOff: boolean;
+	/** The first test of the same part and positions that this one re-tests after a repair. */
+	declare retestOf: string | null;
 	declare meter: Record<string, unknown> | null;
 	declare temperature: Record<string, unknown> | null;
 	declare state: 'in_progress' | 'done' | 'abandoned';
@@ -32,6 +36,8 @@ export function initTest(s: Sequelize, syncAttrs: () => Record<string, object>) 
 			partNumber: { type: DataTypes.STRING(60), allowNull: true },
 			position: { type: DataTypes.STRING(20), allowNull: true },
 			technicianId: { type: DataTypes.UUID, allowNull: true },
+			needsSignOff: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false, field: 'needs_signoff' },
+			retestOf: { type: DataTypes.UUID, allowNull: true },
 			meter: jsonText('meter'),
 			temperature: jsonText('temperature'),
 			state: { type: DataTypes.ENUM('in_progress', 'done', 'abandoned'), allowNull: false, defaultValue: 'in_progress' },
