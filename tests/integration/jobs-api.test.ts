@@ -5,6 +5,7 @@ import * as customers from '../../src/lib/server/services/customers';
 import { jobs } from '../../src/lib/server/services/jobs';
 import { vehicles } from '../../src/lib/server/services/vehicles';
 import type { Client } from '../helpers/http';
+import { create, push } from '../helpers/sync';
 import {
 	expectError,
 	expectInvalid,
@@ -378,6 +379,32 @@ describe('POST /api/jobs/:id/status', () => {
 		const walk = ['testing', 'awaiting_authorisation', 'awaiting_parts', 'repaired', 'retested_ok'];
 		let version = 1;
 		for (const status of walk) {
+			// "Re-tested OK" needs a finished re-test after the repair (the closing rules' own tests
+			// are in signoffs.test.ts): a first test of cylinder 1, then its re-test.
+			if (status === 'retested_ok') {
+				const first = create('test', {
+					jobId: job.id,
+					partNumber: 'JB-1',
+					position: '1',
+					state: 'done'
+				});
+				const again = create('test', {
+					jobId: job.id,
+					partNumber: 'JB-1',
+					position: '1',
+					state: 'done',
+					retestOf: first.entityId
+				});
+				const reading = create('reading', {
+					testId: again.entityId,
+					checkKey: 'primary',
+					position: '1',
+					samples: [{ value: 0.5, unit: 'Ω' }]
+				});
+				expect(
+					(await push(as.technician, 'walk-phone', [first, again, reading])).map((x) => x.status)
+				).toEqual(['applied', 'applied', 'applied']);
+			}
 			const r = await move(as.technician, job.id, status, version);
 			expect(r.status).toBe(200);
 			version = (await r.json()).job.version;

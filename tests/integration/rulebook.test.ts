@@ -101,9 +101,45 @@ async function job(assignee: string | null, o: { status?: string; hybrid?: boole
 		...(o.status ? { status: o.status } : {})
 	})) as T;
 }
-/** A test started by `by` on `jobId`. */
-const testOn = async (by: Actor, jobId: string) =>
-	(await tests.create(by, { jobId, componentId, sheetId, meter: METER, temperature: { mode: 'measured', tempC: 20 } })) as T;
+/** A test started by `by` on `jobId` (in progress unless `o.state` says otherwise). */
+const testOn = async (by: Actor, jobId: string, o: { state?: string; retestOf?: string } = {}) =>
+	(await tests.create(by, { jobId, componentId, sheetId, meter: METER, temperature: { mode: 'measured', tempC: 20 }, ...o })) as T;
+/** A finished test of the apprentice on a job of the apprentice's: it waits for a lead's sign-off. */
+async function apprenticeTest(o: { status?: string } = {}) {
+	const j = await job(a.users.apprentice.id, o);
+	return { job: j, test: await testOn(a.users.apprentice.actor, j.id, { state: 'done' }), id: uuidv7() };
+}
+/** A reading of the primary winding by the lead's phone: 0.60 Ω less 0.10 Ω leads = 0.50 Ω, OK at 20 °C. */
+async function okReading(testId: string) {
+	const r = await client.lead.json('POST', '/api/sync/push', {
+		deviceId: 'rb-readings',
+		ops: [create('reading', { testId, checkKey: 'primary', samples: [{ value: 0.6, unit: 'Ω' }], rangeLabel: '200 Ω' })]
+	});
+	expect((await r.json()).results[0].status).toBe('applied');
+}
+/** A clash on the job's notes, made by two of the lead's phones from one version. */
+async function clashOn(j: T) {
+	const ops = (notes: string) => [op('job', 'patch', j.id, { notes }, j.version)];
+	await client.lead.json('POST', '/api/sync/push', { deviceId: 'rb-close-1', ops: ops('Plug 2 wet') });
+	const r = await client.lead.json('POST', '/api/sync/push', { deviceId: 'rb-close-2', ops: ops('Plug 2 dry') });
+	expect((await r.json()).results[0].status).toBe('conflict');
+	return (await rowOf('jobs', j.id)) as T;
+}
+/** The status-move channels of a job prepared by `setup`, landing when the job has `to`. */
+const statusMove = (to: string) => ({
+	form: (t: T) => ({ path: `/jobs/${t.job.id}?/status`, fields: { baseVersion: String(t.job.version), status: to } }),
+	api: (t: T) => ({ method: 'POST', path: `/api/jobs/${t.job.id}/status`, body: { baseVersion: t.job.version, status: to } }),
+	sync: (t: T) => op('job', 'patch', t.job.id, { status: to }, t.job.version),
+	landed: async (t: T) => (await rowOf('jobs', t.job.id)).status === to
+});
+/** The sign-off channels of `t.test`: the job page's form, the JSON API, a phone's push. */
+const signOffOf = (fields: Record<string, string> = {}) => ({
+	form: (t: T) => ({ path: `/jobs/${t.job.id}?/signoff`, fields: { testId: t.test.id, decision: 'signed', ...fields } }),
+	api: (t: T) => ({ method: 'POST', path: `/api/tests/${t.test.id}/signoff`, body: { ...fields } }),
+	sync: (t: T) => create('signoff', { testId: t.test.id, mode: 'witnessed', ...fields }, t.id),
+	landed: async (t: T, r: RoleKey) =>
+		(await count('SELECT COUNT(*) AS n FROM signoffs WHERE test_id = ? AND created_by = ? AND decision = ?', t.test.id, idOf(r), fields.decision ?? 'signed')) === 1
+});
 /** A draft sheet of the component, started by `by`. */
 const draft = async (by: Actor) => (await sheets.create(by, { componentId, checks: CHECKS })) as T;
 async function approved() {
@@ -325,9 +361,7 @@ const ACTIONS: Action[] = [
 			['add a spark test on one’s own job', 'spark_test', false, 'own', EVERYONE],
 			['add a spark test on a hybrid', 'spark_test', true, 'own', STAFF],
 			['add a swap test on one’s own job', 'swap_test', false, 'own', EVERYONE],
-			['add a swap test on a hybrid', 'swap_test', true, 'own', STAFF],
-			['sign off a test', 'signoff', false, 'own', LEADS],
-			['sign off a test naming someone else as the signer (the signer is whoever signs)', 'signoff', false, 'own', LEADS]
+			['add a swap test on a hybrid', 'swap_test', true, 'own', STAFF]
 		] as const
 	).map(
 		([name, entity, hybrid, whose, allowed]): Action => ({
@@ -344,18 +378,101 @@ const ACTIONS: Action[] = [
 						? { testId: t.test.id, checkKey: 'primary', samples: [{ value: 0.42, unit: 'Ω' }] }
 						: entity === 'spark_test'
 							? { jobId: t.job.id, position: '1', gapMm: 10, outcome: 'go' }
-							: entity === 'swap_test'
-								? { jobId: t.job.id, fromPosition: '1', toPosition: '3', beforeCounts: { 1: 9 }, afterCounts: { 3: 8 }, conclusion: 'fault_followed' }
-								: { testId: t.test.id, mode: 'witnessed', ...(name.includes('signer') ? { signedBy: a.users.owner.id } : {}) },
+							: { jobId: t.job.id, fromPosition: '1', toPosition: '3', beforeCounts: { 1: 9 }, afterCounts: { 3: 8 }, conclusion: 'fault_followed' },
 					t.id
 				),
 			landed: async (t, r) => {
-				const table = { reading: 'readings', spark_test: 'spark_tests', swap_test: 'swap_tests', signoff: 'signoffs' }[entity];
+				const table = { reading: 'readings', spark_test: 'spark_tests', swap_test: 'swap_tests' }[entity];
 				const row = await rowOf(table, t.id);
 				return !!row && row.created_by === idOf(r);
 			}
 		})
 	),
+
+	// ——— Sign-offs of apprentice work ———
+	{ name: 'sign off an apprentice’s finished test', allowed: LEADS, setup: () => apprenticeTest(), ...signOffOf() },
+	{
+		name: 'sign off a test naming someone else as the signer (the signer is whoever signs)',
+		allowed: LEADS,
+		setup: () => apprenticeTest(),
+		api: (t) => ({ method: 'POST', path: `/api/tests/${t.test.id}/signoff`, body: { createdBy: a.users.owner.id, signedBy: a.users.owner.id } }),
+		sync: (t) => create('signoff', { testId: t.test.id, mode: 'witnessed', signedBy: a.users.owner.id }, t.id),
+		landed: async (t, r) => (await count('SELECT COUNT(*) AS n FROM signoffs WHERE test_id = ? AND created_by = ?', t.test.id, idOf(r))) === 1
+	},
+	{
+		name: 'send an apprentice’s test back with a note',
+		allowed: LEADS,
+		setup: () => apprenticeTest(),
+		...signOffOf({ decision: 'sent_back', note: 'Read the secondary winding on the 20 kΩ range' })
+	},
+	{
+		name: 'sign off a technician’s test (only an apprentice’s test needs one)',
+		allowed: [],
+		setup: async () => {
+			const j = await job(a.users.technician.id);
+			return { job: j, test: await testOn(a.users.technician.actor, j.id, { state: 'done' }), id: uuidv7() };
+		},
+		...signOffOf()
+	},
+	{
+		name: 'sign off an apprentice’s test already signed off',
+		allowed: [],
+		setup: async () => {
+			const t = await apprenticeTest();
+			const r = await client.owner.json('POST', `/api/tests/${t.test.id}/signoff`, {});
+			expect(r.status).toBe(201);
+			return t;
+		},
+		...signOffOf(),
+		// The owner's sign-off of the set-up stays the only one.
+		landed: async (t) => (await count('SELECT COUNT(*) AS n FROM signoffs WHERE test_id = ?', t.test.id)) > 1
+	},
+
+	// ——— What the work must show before a job is re-tested OK or closed ———
+	{
+		name: 'mark a job re-tested OK with no re-test recorded',
+		allowed: [],
+		setup: async (r) => {
+			const j = await job(ownWorker(r).id, { status: 'repaired' });
+			await testOn(self(r), j.id, { state: 'done' });
+			return { job: j };
+		},
+		...statusMove('retested_ok')
+	},
+	{
+		name: 'mark a job re-tested OK once a finished re-test of the same part reads OK',
+		allowed: EVERYONE,
+		setup: async (r) => {
+			const j = await job(ownWorker(r).id, { status: 'repaired' });
+			const first = await testOn(self(r), j.id, { state: 'done' });
+			const again = await testOn(self(r), j.id, { state: 'done', retestOf: first.id });
+			await okReading(again.id);
+			return { job: j };
+		},
+		...statusMove('retested_ok')
+	},
+	{
+		name: 'close a job while an apprentice’s test waits for sign-off',
+		allowed: [],
+		setup: () => apprenticeTest({ status: 'repaired' }),
+		...statusMove('closed')
+	},
+	{
+		name: 'close a job once its apprentice’s tests are signed off',
+		allowed: LEADS,
+		setup: async () => {
+			const t = await apprenticeTest({ status: 'repaired' });
+			expect((await client.lead.json('POST', `/api/tests/${t.test.id}/signoff`, {})).status).toBe(201);
+			return t;
+		},
+		...statusMove('closed')
+	},
+	{
+		name: 'close a job with an open clash on it',
+		allowed: [],
+		setup: async (r) => ({ job: await clashOn(await job(ownWorker(r).id, { status: 'repaired' })) }),
+		...statusMove('closed')
+	},
 
 	// ——— The spec library ———
 	{

@@ -33,7 +33,16 @@ const HEADERS: Record<OverviewTable, string[]> = {
 		'lead_zero_min_ohm',
 		'lead_zero_max_ohm'
 	],
-	people: ['name', 'role', 'tests', 'finished', 'with_result', 'cant_tell', 'cant_tell_pct']
+	people: [
+		'name',
+		'role',
+		'tests',
+		'finished',
+		'with_result',
+		'cant_tell',
+		'cant_tell_pct',
+		'waiting_signoff'
+	]
 };
 
 const pct = (r: number | null) => (r == null ? null : Math.round(r * 1000) / 10);
@@ -83,7 +92,8 @@ function lines(table: OverviewTable, t: OverviewTables): Cell[][] {
 				r.finished,
 				r.withResult,
 				r.cantTell,
-				pct(r.cantTellRate)
+				pct(r.cantTellRate),
+				r.waiting
 			]);
 	}
 }

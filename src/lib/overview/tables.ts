@@ -30,6 +30,8 @@ export type TestGroup = {
 	rangeKnown: number;
 	/** Tests read in relative mode (the meter took the leads off itself). */
 	relative: number;
+	/** Finished tests of an apprentice waiting for a lead's sign-off. */
+	waiting: number;
 };
 
 /** Lead zero (ohms, leads subtracted) of one meter over one period. */
@@ -81,6 +83,8 @@ export type PersonRow = {
 	cantTell: number;
 	/** Can't tell over the tests with a result (0–1), null when none has one. */
 	cantTellRate: number | null;
+	/** Finished tests waiting for a lead's sign-off (an apprentice's; 0 for everyone else). */
+	waiting: number;
 };
 
 export type LeadSeries = { meterName: string | null; points: LeadPoint[] };
@@ -174,7 +178,8 @@ export function peopleRows(groups: TestGroup[], people: Person[]): PersonRow[] {
 			finished: list.filter((g) => g.state === 'done').reduce((n, g) => n + g.tests, 0),
 			withResult,
 			cantTell,
-			cantTellRate: rate(cantTell, withResult)
+			cantTellRate: rate(cantTell, withResult),
+			waiting: total(list, 'waiting')
 		};
 	});
 }

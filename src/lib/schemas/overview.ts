@@ -19,7 +19,7 @@ export const METER_SORTS = [
 	'leadLatest',
 	'unresolvedRate'
 ] as const;
-export const PEOPLE_SORTS = ['name', 'role', 'tests', 'finished', 'cantTellRate'] as const;
+export const PEOPLE_SORTS = ['name', 'role', 'tests', 'finished', 'cantTellRate', 'waiting'] as const;
 export const OVERVIEW_TABLES = ['parts', 'meters', 'lead-zero', 'people'] as const;
 export type OverviewTable = (typeof OVERVIEW_TABLES)[number];
 

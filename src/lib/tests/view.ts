@@ -13,6 +13,8 @@ import { bandName } from '../library/labels';
 import { limitFromBase, plainNumber } from '../library/limits';
 import { ROLE_LABELS } from '../labels';
 import type { Role } from '../roles';
+import { signOffStates, type FactDecision } from './facts';
+import { MODE_TEXT, SIGNOFF_TEXT, type Decision, type SignOffKind } from './signoff';
 
 type Rec = Record<string, unknown>;
 export type SheetChecks = {
@@ -52,9 +54,31 @@ export type CheckView = {
 	byPosition: Record<string, { value: number; verdict: ResultKey }>;
 	comparison: ReturnType<typeof comparePositions>;
 };
+/** Where a test stands with its sign-off, as people read it. */
+export type SignOffView = {
+	kind: SignOffKind;
+	/** The badge's words ('' when no sign-off is needed). */
+	text: string;
+	/** Who decided and how, e.g. "Dana Reyes (Lead) · read at the desk". */
+	by: string | null;
+	at: string | null;
+	/** The note with the decision: what to do again, for a test sent back. */
+	note: string | null;
+	/** A test waiting again: it was sent back before, with this note. */
+	earlierNote: string | null;
+};
 export type TestView = {
 	id: string;
 	partNumber: string | null;
+	/** Whether an apprentice did it (it then waits for a lead's sign-off). */
+	needsSignOff: boolean;
+	signOff: SignOffView;
+	/** The first test this one re-tests after the repair (null: a first test). */
+	retestOf: string | null;
+	/** The first test's start, for "Re-test of the test of …" (null when not on this side). */
+	retestOfAt: string | null;
+	/** Re-tests started from this test, newest last. */
+	retests: string[];
 	sheetVersion: number | null;
 	state: 'in_progress' | 'done' | 'abandoned';
 	stateText: string;
@@ -119,6 +143,11 @@ const iso = (v: unknown) => (v == null ? null : new Date(v as string).toISOStrin
 export type BuildInput = {
 	tests: Rec[];
 	readings: Rec[];
+	/**
+	 * Sign-off decisions. A record's `order` (here and on readings) is its place in the feed;
+	 * without one, its arrival time (`createdAt`).
+	 */
+	signoffs?: Rec[];
 	sparks: Rec[];
 	swaps: Rec[];
 	sheets: SheetChecks[];
@@ -235,12 +264,69 @@ function checkView(
 	};
 }
 
+/** A record's place in the feed: `order` when given, else its arrival time. */
+const orderOf = (r: Rec) =>
+	typeof r.order === 'number' ? r.order : Date.parse(String(r.createdAt ?? r.deviceTime ?? 0)) || 0;
+
+/** Each test's sign-off as people read it. */
+function signOffViews(input: BuildInput): Map<string, SignOffView> {
+	const tests = input.tests.map((t) => ({
+		id: String(t.id),
+		partNumber: str(t.partNumber),
+		position: str(t.position),
+		state: String(t.state ?? 'in_progress'),
+		needsSignOff: Boolean(t.needsSignOff),
+		retestOf: str(t.retestOf)
+	}));
+	const readings = input.readings.map((r) => ({
+		testId: String(r.testId),
+		checkKey: String(r.checkKey),
+		position: str(r.position),
+		verdict: null,
+		order: orderOf(r)
+	}));
+	const decisions: FactDecision[] = (input.signoffs ?? []).map((d) => ({
+		testId: String(d.testId),
+		decision: d.decision === 'sent_back' ? 'sent_back' : 'signed',
+		mode: d.mode === 'witnessed' ? 'witnessed' : 'remote',
+		note: str(d.note),
+		by: str(d.createdBy),
+		at: iso(d.createdAt ?? d.deviceTime),
+		order: orderOf(d)
+	}));
+	const who = (d: Decision) => personOf(input.people, d.by);
+	return new Map(
+		[...signOffStates(tests, readings, decisions)].map(([id, s]) => {
+			const view: SignOffView = {
+				kind: s.kind,
+				text: SIGNOFF_TEXT[s.kind],
+				by: null,
+				at: null,
+				note: null,
+				earlierNote: null
+			};
+			if (s.kind === 'signed')
+				Object.assign(view, {
+					by: `${who(s.last)} · ${MODE_TEXT[s.last.mode]}`,
+					at: s.last.at,
+					note: s.last.note
+				});
+			else if (s.kind === 'sent_back')
+				Object.assign(view, { by: who(s.last), at: s.last.at, note: s.last.note });
+			else if (s.kind === 'waiting' || s.kind === 'in_progress')
+				view.earlierNote = s.sentBack?.note ?? null;
+			return [id, view];
+		})
+	);
+}
+
 function testView(
 	t: Rec,
 	readings: Rec[],
 	sheets: Map<string, SheetChecks>,
 	people: People,
-	locale: string
+	locale: string,
+	signOff: SignOffView
 ): TestView {
 	const temp = (t.temperature as TemperatureSnapshot | null) ?? null;
 	const judgedAt: TemperatureSnapshot = temp ?? { mode: 'unknown' };
@@ -291,6 +377,11 @@ function testView(
 	return {
 		id: String(t.id),
 		partNumber: str(t.partNumber),
+		needsSignOff: Boolean(t.needsSignOff),
+		signOff,
+		retestOf: str(t.retestOf),
+		retestOfAt: null,
+		retests: [],
 		sheetVersion: (t.sheetVersion as number | null) ?? sheet?.sheetVersion ?? null,
 		state,
 		stateText: TEST_STATE_TEXT[state],
@@ -323,10 +414,19 @@ export function buildJobTests(input: BuildInput): JobTestsView {
 		Object.entries((c as Record<string, number>) ?? {})
 			.map(([p, n]) => `cyl ${p}: ${n}`)
 			.join(', ') || 'none';
+	const signOffs = signOffViews(input);
+	const tests = [...input.tests]
+		.sort(byTime)
+		.map((t) => testView(t, input.readings, sheets, people, locale, signOffs.get(String(t.id))!));
+	for (const t of tests) {
+		const first = t.retestOf ? tests.find((x) => x.id === t.retestOf) : undefined;
+		if (first) {
+			t.retestOfAt = first.startedAt;
+			first.retests.push(t.id);
+		}
+	}
 	return {
-		tests: [...input.tests]
-			.sort(byTime)
-			.map((t) => testView(t, input.readings, sheets, people, locale)),
+		tests,
 		sparks: [...input.sparks].sort(byTime).map((s) => ({
 			id: String(s.id),
 			position: String(s.position),

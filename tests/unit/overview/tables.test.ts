@@ -29,6 +29,7 @@ const g = (over: Partial<TestGroup>): TestGroup => ({
 	unresolved: 0,
 	rangeKnown: 0,
 	relative: 0,
+	waiting: 0,
 	...over
 });
 const GROUPS: TestGroup[] = [
@@ -44,7 +45,15 @@ const GROUPS: TestGroup[] = [
 		readings: 6,
 		unresolved: 3,
 		rangeKnown: 4,
-		relative: 1
+		relative: 1,
+		waiting: 2
+	}),
+	g({
+		partNumber: 'ZX-2',
+		technicianId: 'a',
+		meterName: 'Bench B',
+		state: 'in_progress',
+		tests: 1
 	}),
 	g({
 		partNumber: null,
@@ -92,8 +101,9 @@ describe('the part-number table', () => {
 			failRate: 1 / 5
 		});
 		expect(rows.find((r) => r.partNumber === 'ZX-2')).toMatchObject({
-			tests: 3,
+			tests: 4,
 			outOfSpec: 0,
+			noResult: 1,
 			failRate: 0
 		});
 		expect(rows.find((r) => r.partNumber === null)).toMatchObject({ tests: 1, failRate: 1 });
@@ -143,7 +153,8 @@ describe('the people table', () => {
 		});
 		expect(rows.find((r) => r.id === 'a')).toMatchObject({
 			role: 'apprentice',
-			tests: 3,
+			tests: 4,
+			finished: 3,
 			cantTell: 2,
 			cantTellRate: 2 / 3
 		});
@@ -151,6 +162,18 @@ describe('the people table', () => {
 			name: 'Someone no longer in the workshop',
 			role: null
 		});
+	});
+
+	it('adds up the finished tests waiting for a lead’s sign-off per person', () => {
+		const rows = peopleRows(GROUPS, PEOPLE);
+		expect(rows.find((r) => r.id === 'a')!.waiting).toBe(2);
+		expect(rows.find((r) => r.id === 't')!.waiting).toBe(0);
+		expect(
+			peopleRows(
+				[...GROUPS, g({ technicianId: 'a', partNumber: 'ZX-3', tests: 2, waiting: 1 })],
+				PEOPLE
+			).find((r) => r.id === 'a')!.waiting
+		).toBe(3);
 	});
 });
 
@@ -258,11 +281,12 @@ describe('CSV', () => {
 		expect(people.find((r) => r.cells[0] === 'Wren Tolley')!.cells).toEqual([
 			'Wren Tolley',
 			'Apprentice',
-			'3',
+			'4',
 			'3',
 			'3',
 			'2',
-			'66.7'
+			'66.7',
+			'2'
 		]);
 	});
 

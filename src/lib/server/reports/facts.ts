@@ -14,6 +14,9 @@ import { db } from '../db';
 import { Component, Customer, Job, SpecSheet, Test, User, Vehicle } from '../db/models';
 import { NotFoundError } from '../errors';
 import type { ReportSettings } from './settings';
+import { jobRecords } from '../services/job-facts';
+import { signOffStates } from '../../tests/facts';
+import { isSignedOff } from '../../tests/signoff';
 
 /**
  * The photos of a job marked for the customer. The photo store plugs in here; until it
@@ -105,7 +108,8 @@ export async function jobWithParties(actor: Actor, jobId: string): Promise<JobPa
 
 /**
  * Everything the report says about the job, plus the notes the sender adds. A test logged by
- * an apprentice goes in only once a lead has signed it off; `awaitingSignOff` counts those
+ * an apprentice goes in only once a lead has signed it off (its latest decision a sign-off,
+ * as `signOffStateOf` reads it: a test sent back stays out); `awaitingSignOff` counts those
  * left out.
  */
 export async function gatherFacts(
@@ -116,8 +120,9 @@ export async function gatherFacts(
 	now = new Date()
 ): Promise<{ facts: ReportFacts; awaitingSignOff: number }> {
 	const { job, customer, vehicle } = p;
-	const [all, sparks, swaps, photos] = await Promise.all([
+	const [all, records, sparks, swaps, photos] = await Promise.all([
 		testsOf(actor, job.id),
+		jobRecords(actor, job.id),
 		select(`SELECT position, gap_mm, outcome FROM spark_tests WHERE workshop_id = ? AND job_id = ? ORDER BY seq`, [actor.workshopId, job.id]),
 		select(`SELECT from_position, to_position, conclusion FROM swap_tests WHERE workshop_id = ? AND job_id = ? ORDER BY seq`, [actor.workshopId, job.id]),
 		photosForCustomer(actor, job.id)
@@ -125,14 +130,8 @@ export async function gatherFacts(
 	const testerIds = [...new Set([...all.map((t) => t.technicianId), job.assigneeId].filter(Boolean))] as string[];
 	const users = await User.findAll({ where: { workshopId: actor.workshopId, id: testerIds } });
 	const names = new Map(users.map((u) => [u.id, u.name]));
-	const apprentice = new Set(users.filter((u) => u.role === 'apprentice').map((u) => u.id));
-	const byApprentice = all.filter((t) => t.technicianId && apprentice.has(t.technicianId)).map((t) => t.id);
-	const signed = new Set(
-		byApprentice.length
-			? (await select('SELECT DISTINCT test_id FROM signoffs WHERE workshop_id = ? AND test_id IN (?)', [actor.workshopId, byApprentice])).map((r) => String(r.test_id))
-			: []
-	);
-	const tests = all.filter((t) => !byApprentice.includes(t.id) || signed.has(t.id));
+	const states = signOffStates(records.tests, records.readings, records.decisions);
+	const tests = all.filter((t) => isSignedOff(states.get(t.id) ?? 'not_needed'));
 	const testers = tests.some((t) => t.readings.length) ? tests.filter((t) => t.readings.length).map((t) => t.technicianId) : [job.assigneeId];
 	const facts: ReportFacts = {
 		jobNumber: job.number,

@@ -4,8 +4,10 @@
  *
  * 1. The tests in the range, read from the covering index `tests_overview`, each joined to
  *    its one row in `test_summaries` (its readings' verdicts and range flags, kept up to date
- *    by the sync path) — the readings themselves are never read — grouped by part number,
- *    person, state and meter: a few hundred rows at most.
+ *    by the sync path, with its latest sign-off decision) — the readings themselves are never
+ *    read — grouped by part number, person, state and meter: a few hundred rows at most.
+ *    Apprentices' finished tests with no sign-off (or sent back and read again since) are
+ *    the person's tests waiting for a sign-off, as `signOffStateOf` decides.
  * 2. The lead zero of the tests that subtracted their leads, per meter and period, from the
  *    same index.
  * Abandoned and deleted tests are left out. Filters and sorts apply to the grouped rows, so
@@ -32,7 +34,9 @@ export const OVERVIEW_SQL = {
 		SUM(COALESCE(s.out_of_spec, 0) = 0 AND s.cant_tell > 0) AS cant_tell,
 		SUM(COALESCE(s.out_of_spec, 0) = 0 AND COALESCE(s.cant_tell, 0) = 0 AND s.ok > 0) AS ok,
 		SUM(s.readings) AS readings, SUM(s.unresolved) AS unresolved, SUM(s.range_known) AS range_known,
-		SUM(t.relative_mode) AS relative
+		SUM(t.relative_mode) AS relative,
+		SUM(t.needs_signoff = 1 AND t.state = 'done'
+			AND (s.signoff IS NULL OR (s.signoff = 'sent_back' AND s.revised = 1))) AS waiting
 	FROM tests t LEFT JOIN test_summaries s ON s.test_id = t.id
 	WHERE t.workshop_id = ? AND t.created_at >= ? AND t.created_at < ?
 		AND t.deleted_at IS NULL AND t.state <> 'abandoned'
@@ -102,7 +106,8 @@ export async function readOverview(actor: Actor, q: OverviewQuery, today = new D
 		readings: n(r.readings),
 		unresolved: n(r.unresolved),
 		rangeKnown: n(r.range_known),
-		relative: n(r.relative)
+		relative: n(r.relative),
+		waiting: n(r.waiting)
 	}));
 	const points: LeadPoint[] = leadRows.map((r) => ({
 		meterName: (r.meter_name as string | null) ?? null,

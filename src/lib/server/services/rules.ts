@@ -14,17 +14,22 @@
 import { Op, type Transaction } from 'sequelize';
 import { isLead } from '../../roles';
 import {
+	needsJobFacts,
 	refuseAssignee,
 	refuseHybridWork,
 	refuseSignOff,
 	refuseStatusChange,
+	refuseStatusFacts,
 	seesJob
 } from '../../rules';
 import { findIdentityProblems } from '../../schemas/vehicle';
 import type { Actor } from '../auth/types';
-import { Component, Customer, Job, SpecSheet, User, Vehicle } from '../db/models';
+import { Component, Customer, Job, SpecSheet, Test, User, Vehicle } from '../db/models';
 import { ForbiddenError, NotFoundError, SheetApprovedError, ValidationError } from '../errors';
 import type { RuleContext, Rules } from './write-path';
+import type { SignOffDecision, SignOffKind } from '../../tests/signoff';
+import { positionsOf } from '../../tests/facts';
+import { loadJobFacts } from './job-facts';
 
 export { seesJob };
 
@@ -92,19 +97,30 @@ async function assertLive(
 /**
  * Jobs. Technicians and apprentices open jobs for themselves and change only the jobs
  * assigned to them; only a workshop lead or owner assigns a job to someone else or removes
- * one; apprentices never close a job; only a lead or owner reopens a closed one.
+ * one; apprentices never close a job; only a lead or owner reopens a closed one. What the
+ * work must show: "Re-tested OK" needs a finished re-test after the repair that reads
+ * nothing out of spec; "Closed" needs no open clash on the job and every apprentice test
+ * signed off (`refuseRetestedOk`, `refuseClose`, read from the stored tests in the write's
+ * transaction).
  */
 export const jobRules: Rules = {
-	authorize({ actor, kind, row, changed }) {
+	async authorize({ actor, kind, row, changed, t }) {
 		if (kind === 'create') {
 			if ('assigneeId' in changed) refuse(refuseAssignee(actor, (changed.assigneeId as string) ?? null));
-			refuse(refuseStatusChange(actor, 'open', (changed.status as string | undefined) ?? 'open'));
+			const status = (changed.status as string | undefined) ?? 'open';
+			refuse(refuseStatusChange(actor, 'open', status));
+			// A new job has no tests nor clashes yet.
+			if (needsJobFacts(status)) refuse(refuseStatusFacts(status, { tests: [], openClashes: 0 }));
 			return;
 		}
 		if (!seesJob(actor, row!)) throw new ForbiddenError('You can change only the jobs assigned to you');
 		if (kind === 'delete') return leadsOnly(actor, 'Only a workshop lead can remove a job');
 		if ('assigneeId' in changed) refuse(refuseAssignee(actor, (changed.assigneeId as string) ?? null));
-		if ('status' in changed) refuse(refuseStatusChange(actor, row!.status as string, changed.status as string));
+		if ('status' in changed) {
+			refuse(refuseStatusChange(actor, row!.status as string, changed.status as string));
+			if (needsJobFacts(changed.status))
+				refuse(refuseStatusFacts(changed.status as string, await loadJobFacts(actor, row!.id as string, t)));
+		}
 	},
 	async checkFields({ actor, changed, t }) {
 		const fields: Record<string, string> = {};
@@ -171,8 +187,32 @@ export const vehicleRules: Rules = {
 };
 
 /**
+ * A re-test names the first test of the same part and positions on the same job (400 naming
+ * `retestOf` otherwise): checked when it starts, and again when its part or positions change.
+ */
+async function checkRetestLink(actor: Actor, f: Record<string, unknown>, t: Transaction) {
+	const first = await Test.findOne({
+		where: { id: f.retestOf as string, workshopId: actor.workshopId, deletedAt: { [Op.is]: null } },
+		transaction: t
+	});
+	const bad = (why: string) => new ValidationError({ retestOf: why });
+	if (!first || first.jobId !== f.jobId) throw bad('Re-test a test of the same job');
+	if (first.retestOf) throw bad('Link the re-test to the first test, not to another re-test');
+	const same =
+		first.componentId && f.componentId
+			? first.componentId === f.componentId
+			: (first.partNumber ?? '').toLowerCase() === String(f.partNumber ?? '').toLowerCase();
+	if (!same) throw bad('A re-test is of the same part as its first test');
+	const before = positionsOf(first.position);
+	const now = positionsOf(f.position);
+	if (before.length !== 0 && (now.length === 0 || now.some((p) => !before.includes(p))))
+		throw bad(`A re-test covers the positions of its first test (${before.join(', ')})`);
+}
+
+/**
  * Tests: on a job the actor sees (404 otherwise); never an airbag component; no apprentice
- * on a hybrid or electric vehicle; a test is changed or removed by its technician or a lead.
+ * on a hybrid or electric vehicle; a test is changed or removed by its technician or a lead;
+ * a re-test is linked to the first test of the same part and positions.
  */
 export const testRules: Rules = {
 	async authorize({ actor, kind, row, changed, t }) {
@@ -191,9 +231,11 @@ export const testRules: Rules = {
 	},
 	async checkFields({ actor, kind, row, changed, t }) {
 		if (kind === 'delete') return;
+		const f = { ...row, ...changed };
+		const relinks = kind === 'create' || ['componentId', 'partNumber', 'position'].some((k) => k in changed);
+		if (f.retestOf && relinks) await checkRetestLink(actor, f, t);
 		const touches = ['componentId', 'sheetId', 'sheetVersion'].some((k) => k in changed);
 		if (kind === 'update' && !touches) return;
-		const f = { ...row, ...changed };
 		if (f.componentId && 'componentId' in changed) {
 			const n = await Component.count({
 				where: { id: f.componentId as string, workshopId: actor.workshopId },
@@ -270,17 +312,23 @@ export const sheetRules: Rules = {
 export type AppendRefusal = { reason: 'not_found' | 'forbidden'; message?: string };
 
 /**
- * The append-only records of sync (readings, spark and swap tests, sign-offs; photos are
- * not taken yet): on a job the actor sees (`not_found` otherwise, as for a record of
- * another workshop); sign-offs by a workshop lead or owner only; no apprentice work on a
- * hybrid or electric vehicle. `job` is the record's job as the push loaded it, in bulk.
+ * The append-only records (readings, spark and swap tests, sign-offs; photos are not taken
+ * yet), from sync and from the desk: on a job the actor sees (`not_found` otherwise, as for
+ * a record of another workshop); sign-offs by a workshop lead or owner, only of a test an
+ * apprentice did, never signed twice (`signing`: the test's facts and the decision); no
+ * apprentice work on a hybrid or electric vehicle. `job` is the record's job as the push
+ * loaded it, in bulk.
  */
 export function refuseAppend(
 	actor: Actor,
 	entity: string,
-	job: { assigneeId: string | null; hybrid: boolean } | undefined
+	job: { assigneeId: string | null; hybrid: boolean } | undefined,
+	signing?: { needsSignOff: boolean; signOff: SignOffKind; decision: SignOffDecision }
 ): AppendRefusal | null {
 	if (!job || !seesJob(actor, job)) return { reason: 'not_found' };
-	const why = entity === 'signoff' ? refuseSignOff(actor) : refuseHybridWork(actor, job.hybrid);
+	const why =
+		entity === 'signoff'
+			? refuseSignOff(actor, signing, signing?.decision)
+			: refuseHybridWork(actor, job.hybrid);
 	return why ? { reason: 'forbidden', message: why } : null;
 }

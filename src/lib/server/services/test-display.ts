@@ -1,7 +1,8 @@
 /**
  * A job's tests for the office page and the JSON API: the same records the phones pull
  * (tests through their aggregate, append-only rows as the feed sends them), drawn by the
- * shared `buildJobTests`. Whoever may open the job may read its tests (leads: every job).
+ * shared `buildJobTests`, with each test's sign-off. Whoever may open the job may read its
+ * tests (leads: every job).
  */
 import { QueryTypes } from 'sequelize';
 import { Op } from 'sequelize';
@@ -14,13 +15,16 @@ import { appendRecord } from '../db/append-tables';
 import { seenJob } from './rules';
 import { tests as testAggregate } from './tests';
 
-/** Every row of an append-only table under one job, oldest first, as the feed sends it. */
+/**
+ * Every row of an append-only table under one job, oldest first, as the feed sends it, with
+ * its place in the feed (`order`: what the sign-off state reads).
+ */
 async function appendRows(actor: Actor, table: string, entity: string, jobId: string) {
 	const rows = await db().query<Record<string, unknown>>(
 		`SELECT * FROM ${table} WHERE job_id = ? AND workshop_id = ? ORDER BY seq`,
 		{ replacements: [jobId, actor.workshopId], type: QueryTypes.SELECT }
 	);
-	return rows.map((r) => appendRecord(entity, r));
+	return rows.map((r) => ({ ...appendRecord(entity, r), order: Number(r.seq) }));
 }
 
 /** The tests, spark tests and swap tests of a job the actor may open (404 otherwise). */
@@ -35,8 +39,9 @@ export async function jobTests(actor: Actor, jobId: string, locale = 'en-GB') {
 		createdAt: r.get('createdAt')
 	}));
 	const sheetIds = [...new Set(rows.flatMap((r) => (r.sheetId ? [r.sheetId] : [])))];
-	const [readings, sparks, swaps, sheets, users] = await Promise.all([
+	const [readings, signoffs, sparks, swaps, sheets, users] = await Promise.all([
 		appendRows(actor, 'readings', 'reading', jobId),
+		appendRows(actor, 'signoffs', 'signoff', jobId),
 		appendRows(actor, 'spark_tests', 'spark_test', jobId),
 		appendRows(actor, 'swap_tests', 'swap_test', jobId),
 		SpecSheet.findAll({ where: { workshopId: actor.workshopId, id: sheetIds } }),
@@ -45,6 +50,7 @@ export async function jobTests(actor: Actor, jobId: string, locale = 'en-GB') {
 	return buildJobTests({
 		tests,
 		readings,
+		signoffs,
 		sparks,
 		swaps,
 		sheets: sheets.map((s) => ({

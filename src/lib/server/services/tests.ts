@@ -1,9 +1,10 @@
 /**
  * Tests on the one write path. A test pins its snapshot: the approved sheet version, the
  * meter and the temperature; its technician is whoever started it (never taken from a
- * client). Who may start or change one is the rulebook's (`testRules` in `rules.ts`): a job
- * the actor sees, an approved sheet of the component, never an airbag component, no
- * apprentice on a hybrid or electric vehicle.
+ * client), and so is whether it needs a lead's sign-off (an apprentice started it). Who may
+ * start or change one is the rulebook's (`testRules` in `rules.ts`): a job the actor sees, an
+ * approved sheet of the component, never an airbag component, no apprentice on a hybrid or
+ * electric vehicle, a re-test linked to the first test of the same part and positions.
  */
 import { testCreate, testPatch } from '../../schemas/test';
 import { SpecSheet, Test } from '../db/models';
@@ -17,12 +18,18 @@ export const tests = defineAggregate({
 	createSchema: testCreate,
 	patchSchema: testPatch,
 	rules: testRules,
-	serverOwned: ['technicianId'],
+	serverOwned: ['technicianId', 'needsSignOff'],
 	prepareCreate: async (actor, f, t) => {
 		const sheet = f.sheetId
 			? await SpecSheet.findOne({ where: { id: f.sheetId, workshopId: actor.workshopId }, transaction: t })
 			: null;
-		return { ...f, technicianId: actor.userId, ...(sheet ? { sheetVersion: sheet.sheetVersion } : {}) };
+		return {
+			...f,
+			technicianId: actor.userId,
+			// An apprentice's test waits for a lead's sign-off (DESIGN §6).
+			needsSignOff: actor.role === 'apprentice',
+			...(sheet ? { sheetVersion: sheet.sheetVersion } : {})
+		};
 	},
 	jobIdOf: (r) => r.get('jobId') as string,
 	toRecord: testRecord

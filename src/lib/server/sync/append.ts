@@ -1,7 +1,7 @@
 /**
  * Append-only ops (readings, spark tests, swap tests, sign-offs) in bulk: one lookup of the
  * tests and sheets they refer to, the rulebook's `refuseAppend` for every record (a job the
- * actor sees, sign-offs by leads, no apprentice on a hybrid), the server's own result for
+ * actor sees, sign-offs by leads of apprentices' tests, no apprentice on a hybrid), the server's own result for
  * every reading (the same pure function the phone uses), one block of feed seqs, and one
  * bulk INSERT per table — never a commit per row. The op id and seq live on the record's
  * own row; its author (the signer of a sign-off) is the session's user, never a field.
@@ -25,6 +25,9 @@ import type { Actor } from '../auth/types';
 import { nextSeq } from '../db/feed';
 import { rawBatch, rawQuery, sqlDateTime } from '../db/raw';
 import { refuseAppend } from '../services/rules';
+import { signOffFacts } from '../services/job-facts';
+import { addDecision, addReading, addToSummaries as writeSummaries, emptyDelta, type SummaryDelta } from '../db/summaries';
+import type { SignOffDecision } from '../../tests/signoff';
 import { groupByTable, type AppendTable, type StoredAppendEntity } from '../db/append-tables';
 import { quickReadingCreate } from './quick-parse';
 
@@ -63,6 +66,8 @@ type Prepared = {
 	mismatch?: { device: string; server: string };
 	/** A reading's part in its test's summary (`test_summaries`). */
 	summary?: { testId: string; verdict: string; unresolved: 0 | 1 | null };
+	/** A sign-off's decision, for its test's summary. */
+	decided?: { testId: string; decision: SignOffDecision };
 };
 
 /** The first columns of every append-only row. */
@@ -73,7 +78,7 @@ const BASE = ['workshop_id', 'id', 'op_id', 'created_by', 'device_id', 'device_t
  */
 const COLUMNS: Record<AppendTable, readonly string[]> = {
 	readings: [...BASE, 'check_key', 'position', 'samples', 'range_label', 'device_result', 'server_result', 'mismatch', 'server_verdict', 'range_unresolved'],
-	signoffs: [...BASE, 'mode', 'note'],
+	signoffs: [...BASE, 'mode', 'decision', 'note'],
 	spark_tests: [...BASE, 'note', 'position', 'gap_mm', 'outcome'],
 	swap_tests: [...BASE, 'note', 'from_position', 'to_position', 'before_counts', 'after_counts', 'conclusion']
 };
@@ -151,6 +156,9 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 	const ids = (k: string) => [...new Set(parsed.flatMap((p) => ('f' in p && p.f![k] ? [p.f![k] as string] : [])))];
 	const tests = await loadTests(ids('testId'), ctx);
 	const jobs = await loadJobs(ids('jobId'), ctx);
+	// Where each signed-off test stands (only when the push carries sign-offs).
+	const signIds = [...new Set(parsed.flatMap((p) => (p.op.entity === 'signoff' && 'f' in p && p.f ? [p.f.testId as string] : [])))];
+	const signing = await signOffFacts(ctx.actor, signIds, ctx.t);
 	return mapInSlices(parsed, (p): Prepared | PushResult => {
 		if (!('f' in p) || !p.f) return reject(p.op, 'invalid', (p as { error: string }).error);
 		const { op, f } = p;
@@ -159,10 +167,14 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 		if (op.entity === 'reading' || op.entity === 'signoff') {
 			const found = tests.get(f.testId as string);
 			const test = found && !Number(found.deleted) ? found : undefined;
-			const refusal = refuseAppend(ctx.actor, op.entity, test?.job);
+			const facts = op.entity === 'signoff' ? signing.get(f.testId as string) : undefined;
+			const decision = f.decision as SignOffDecision;
+			const refusal = refuseAppend(ctx.actor, op.entity, test?.job, facts && { ...facts, decision });
 			if (refusal || !test) return reject(op, refusal?.reason ?? 'not_found', refusal?.message);
 			if (op.entity === 'signoff') {
-				return { op, table: 'signoffs', row: row(test.job_id, test.id, f.mode, f.note ?? null), same: '' };
+				// A second decision in the same push sees this one.
+				if (facts) facts.signOff = decision === 'signed' ? 'signed' : 'sent_back';
+				return { op, table: 'signoffs', row: row(test.job_id, test.id, f.mode, decision, f.note ?? null), same: '', decided: { testId: test.id, decision } };
 			}
 			const checks = test.sheet_id ? test.sheetChecks : null;
 			const check = checks?.find((c) => c.key === f.checkKey);
@@ -236,36 +248,21 @@ function insertRows(table: AppendTable, rows: { place: number; row: unknown[] }[
 }
 
 /**
- * Add the readings to their tests' summaries (what the lead's overview reads): one
- * statement, rows in test id order so that two pushes lock them in the same order.
+ * Add the readings and sign-off decisions to their tests' summaries (what the lead's
+ * overview reads), in the order of the ops: one statement (`db/summaries.ts`).
  */
 async function addToSummaries(ok: Prepared[], { actor, t }: Ctx) {
-	const per = new Map<string, number[]>();
+	const per = new Map<string, SummaryDelta>();
+	const delta = (testId: string) => {
+		let d = per.get(testId);
+		if (!d) per.set(testId, (d = emptyDelta()));
+		return d;
+	};
 	for (const p of ok) {
-		if (!p.summary) continue;
-		const { testId, verdict, unresolved } = p.summary;
-		const s = per.get(testId) ?? [0, 0, 0, 0, 0, 0];
-		s[0]++;
-		if (verdict === 'low' || verdict === 'high') s[1]++;
-		else if (verdict === 'borderline' || verdict === 'depends') s[2]++;
-		else if (verdict === 'within') s[3]++;
-		if (unresolved !== null) {
-			s[4] += unresolved;
-			s[5]++;
-		}
-		per.set(testId, s);
+		if (p.summary) addReading(delta(p.summary.testId), p.summary.verdict, p.summary.unresolved);
+		else if (p.decided) addDecision(delta(p.decided.testId), p.decided.decision);
 	}
-	if (!per.size) return;
-	const rows = [...per].sort(([a], [b]) => (a < b ? -1 : 1));
-	await rawQuery(
-		t,
-		`INSERT INTO test_summaries (test_id, workshop_id, readings, out_of_spec, cant_tell, ok, unresolved, range_known)
-		 VALUES ${rows.map(() => '(?, ?, ?, ?, ?, ?, ?, ?)').join(', ')}
-		 ON DUPLICATE KEY UPDATE readings = readings + VALUES(readings), out_of_spec = out_of_spec + VALUES(out_of_spec),
-		   cant_tell = cant_tell + VALUES(cant_tell), ok = ok + VALUES(ok), unresolved = unresolved + VALUES(unresolved),
-		   range_known = range_known + VALUES(range_known)`,
-		rows.flatMap(([testId, s]) => [testId, actor.workshopId, ...s])
-	);
+	await writeSummaries(t, actor.workshopId, per);
 }
 
 /**

@@ -8,8 +8,9 @@
  *     again at its version, so a phone still showing its own value takes the stored one;
  *  3. forget the field's writers: a phone that sends an older edit of the field after this
  *     clashes with the lead's choice instead of overwriting it as "its own" value;
- *  4. close the conflict with the settler, the value and the note, and write the audit row
- *     (`conflict`, `settle`: who, when, the value kept and the note).
+ *  4. close the conflict with the settler, the value and the note (before step 2, so that the
+ *     record's rules do not count this clash as open), and write the audit row (`conflict`,
+ *     `settle`: who, when, the value kept and the note).
  */
 import { QueryTypes, type Transaction } from 'sequelize';
 import { z } from 'zod';
@@ -120,6 +121,18 @@ export async function settle(actor: Actor, id: string, input: unknown) {
 				: pick.pick === 'value'
 					? pick.value
 					: c.candidates.find((k) => k.deviceId === pick.deviceId)?.value;
+		// Settled first: the record's own rules ("Closed" needs no open clash on the job) must
+		// not count the clash being settled. A refusal below rolls all of it back.
+		const noteText = pick.note || null;
+		await db().query(
+			`UPDATE conflicts SET status = 'settled', settled_by = ?, settled_at = UTC_TIMESTAMP(3), settled_value = ?,
+			   settled_note = ?, updated_at = UTC_TIMESTAMP(3) WHERE id = ?`,
+			{
+				replacements: [actor.userId, JSON.stringify(value ?? null), noteText, id],
+				type: QueryTypes.UPDATE,
+				transaction: t
+			}
+		);
 		const entity = c.entity as MutableEntity;
 		const agg = AGGREGATES[entity];
 		const current = (await agg.read(actor, c.entityId, t).catch(() => null)) as {
@@ -139,16 +152,6 @@ export async function settle(actor: Actor, id: string, input: unknown) {
 		}
 		if (record && record.version === current?.version) await resend(actor, entity, c.entityId, t);
 		if (c.field !== DELETED_FIELD) await forgetWriters(entity, c.entityId, c.field, t);
-		const noteText = pick.note || null;
-		await db().query(
-			`UPDATE conflicts SET status = 'settled', settled_by = ?, settled_at = UTC_TIMESTAMP(3), settled_value = ?,
-			   settled_note = ?, updated_at = UTC_TIMESTAMP(3) WHERE id = ?`,
-			{
-				replacements: [actor.userId, JSON.stringify(value ?? null), noteText, id],
-				type: QueryTypes.UPDATE,
-				transaction: t
-			}
-		);
 		await writeAudit(
 			t,
 			actor,
