@@ -13,6 +13,7 @@ export type NavIconName =
 	| 'vehicles'
 	| 'parts'
 	| 'clashes'
+	| 'signoffs'
 	| 'overview'
 	| 'team'
 	| 'home'
@@ -20,7 +21,9 @@ export type NavIconName =
 	| 'sign-out';
 
 /** A count shown beside an entry; worked out on the server (`server/nav.ts`). */
-export type NavCount = 'clashes';
+export type NavCount = 'clashes' | 'signoffs';
+/** What a count beside an entry means, read after the number ("3 open"). */
+export const NAV_COUNT_WORDS: Record<NavCount, string> = { clashes: 'open', signoffs: 'waiting' };
 
 /**
  * A part of the product that a place needs and that may not be switched on yet: its entries
@@ -43,7 +46,7 @@ export type NavEntry = {
 const EVERYONE = ROLES;
 const LEADS: readonly Role[] = ['lead', 'owner'];
 
-/** The lead's desk (the clash inbox and the overview) is switched on with its pages. */
+/** The lead's desk (the clash inbox, the sign-offs and the overview) is switched on with its pages. */
 export const FEATURES: Readonly<Record<NavFeature, boolean>> = { 'lead-desk': true };
 
 export const NAV: readonly NavEntry[] = [
@@ -52,6 +55,7 @@ export const NAV: readonly NavEntry[] = [
 	{ label: 'Vehicles', href: '/vehicles', roles: EVERYONE, icon: 'vehicles' },
 	{ label: 'Parts library', short: 'Parts', href: '/library', roles: EVERYONE, icon: 'parts' },
 	{ label: 'Clashes', href: '/conflicts', roles: LEADS, icon: 'clashes', count: 'clashes', requires: 'lead-desk' },
+	{ label: 'Sign-offs', href: '/signoffs', roles: LEADS, icon: 'signoffs', count: 'signoffs', requires: 'lead-desk' },
 	{ label: 'Overview', href: '/overview', roles: LEADS, icon: 'overview', requires: 'lead-desk' },
 	{ label: 'Team', href: '/team', roles: LEADS, icon: 'team' }
 ];

@@ -91,7 +91,7 @@ describe('a clash settled at the desk', () => {
 		expect(
 			Number(
 				await page
-					.getByTestId('clash-count')
+					.getByTestId('clashes-count')
 					.innerText()
 					.then((t) => t.replace(/\D/g, ''))
 			)

@@ -18,6 +18,7 @@ describe('who sees which place', () => {
 			'/vehicles',
 			'/library',
 			'/conflicts',
+			'/signoffs',
 			'/overview',
 			'/team'
 		]);
@@ -84,7 +85,7 @@ describe('the phone’s bottom bar', () => {
 	it('shows the first four places and puts the rest under More', () => {
 		const { bar, more } = splitForPhone(navFor('lead', ALL_ON));
 		expect(hrefs(bar)).toEqual(['/jobs', '/customers', '/vehicles', '/library']);
-		expect(hrefs(more)).toEqual(['/conflicts', '/overview', '/team']);
+		expect(hrefs(more)).toEqual(['/conflicts', '/signoffs', '/overview', '/team']);
 	});
 
 	it('gives a technician every place in the bar', () => {

@@ -1,12 +1,16 @@
 /**
  * A job's tests as the phone holds them (IndexedDB), drawn with the same view as the office
  * page: readings not sent yet show no workshop result, and the people's names come from the
- * copy kept at the last sync with signal.
+ * copy kept at the last sync with signal. Also what the job's status rules and the job list
+ * read: sign-off states and the facts of `refuseRetestedOk` / `refuseClose`.
  */
 import { getMeta, listByJob, setMeta, type LocalDb, type LocalRecord } from '../client/local-db';
 import type { Me } from '../client/session';
 import type { Role } from '../roles';
 import { buildJobTests, type JobTestsView, type SheetChecks } from '../tests/view';
+import { jobFactsOf, signOffStates, type FactDecision, type FactReading, type FactTest } from '../tests/facts';
+import type { JobFacts } from '../rules';
+import { listIssues } from '../client/issues';
 import { readSheet } from './library';
 
 type Person = { id: string; name: string; role: Role };
@@ -25,7 +29,14 @@ export async function refreshPeople(db: LocalDb): Promise<void> {
 	}
 }
 
-/** A record as the view reads it; a record made here and not sent yet is the user's own. */
+/** Records this phone has not sent yet come after everything the workshop has (see `order`). */
+const NOT_SENT = 1e15;
+
+/**
+ * A record as the view reads it; a record made here and not sent yet is the user's own.
+ * `order` is its place among the records of the job: the time it reached the workshop, and
+ * after all of those what is still on this phone only.
+ */
 function plain(r: LocalRecord, me: Me, owner: string): Record<string, unknown> {
 	const d: Record<string, unknown> = {
 		...r.data,
@@ -33,6 +44,11 @@ function plain(r: LocalRecord, me: Me, owner: string): Record<string, unknown> {
 		createdAt: r.data.createdAt ?? r.updatedAt
 	};
 	if (r.version === 0 && d[owner] == null) d[owner] = me.id;
+	// The server marks an apprentice's test for sign-off; until it says so, this phone does.
+	if (r.entity === 'test' && d.needsSignOff == null)
+		d.needsSignOff = d.technicianId === me.id && me.role === 'apprentice';
+	const arrived = Date.parse(String(r.data.createdAt ?? ''));
+	d.order = r.version === 0 || Number.isNaN(arrived) ? NOT_SENT + Date.parse(r.updatedAt) : arrived;
 	return d;
 }
 
@@ -59,10 +75,91 @@ export async function readJobTests(
 	return buildJobTests({
 		tests,
 		readings: of('reading', 'createdBy'),
+		signoffs: of('signoff', 'createdBy'),
 		sparks: of('spark_test', 'createdBy'),
 		swaps: of('swap_test', 'createdBy'),
 		sheets: sheets as SheetChecks[],
 		people,
 		locale
 	});
+}
+
+/** A job's tests, readings and sign-off decisions on this phone, as the status rules read them. */
+async function factRecords(db: LocalDb, jobId: string, me: Me) {
+	const under = await listByJob(db, jobId);
+	const of = (entity: string, owner = 'createdBy') =>
+		under.filter((r) => r.entity === entity).map((r) => plain(r, me, owner));
+	const verdict = (r: Record<string, unknown>) =>
+		((r.serverResult ?? r.deviceResult) as { verdict?: string } | null | undefined)?.verdict ?? null;
+	const tests = of('test', 'technicianId')
+		.sort((a, b) => Number(a.order) - Number(b.order))
+		.map(
+			(t): FactTest => ({
+				id: String(t.id),
+				partNumber: (t.partNumber as string | null) ?? null,
+				position: (t.position as string | null) ?? null,
+				state: String(t.state ?? 'in_progress'),
+				needsSignOff: Boolean(t.needsSignOff),
+				retestOf: (t.retestOf as string | null) ?? null
+			})
+		);
+	const readings = of('reading').map(
+		(r): FactReading => ({
+			testId: String(r.testId),
+			checkKey: String(r.checkKey),
+			position: (r.position as string | null) ?? null,
+			verdict: verdict(r),
+			order: Number(r.order)
+		})
+	);
+	const decisions = of('signoff').map(
+		(d): FactDecision => ({
+			testId: String(d.testId),
+			decision: d.decision === 'sent_back' ? 'sent_back' : 'signed',
+			mode: d.mode === 'remote' ? 'remote' : 'witnessed',
+			note: (d.note as string | null) ?? null,
+			by: (d.createdBy as string | null) ?? null,
+			at: (d.createdAt as string | null) ?? null,
+			order: Number(d.order)
+		})
+	);
+	return { tests, readings, decisions };
+}
+
+/**
+ * What the status rules read of a job on this phone: its tests, readings and sign-offs, and
+ * the clashes this phone made on the job or its tests that the lead has not settled yet.
+ * The workshop checks again with everything it holds.
+ */
+export async function readJobFacts(db: LocalDb, jobId: string, me: Me): Promise<JobFacts> {
+	const { tests, readings, decisions } = await factRecords(db, jobId, me);
+	const ids = new Set([jobId, ...tests.map((t) => t.id)]);
+	const clashes = (await listIssues(db)).filter((i) => i.kind === 'conflict' && ids.has(i.op.entityId)).length;
+	return jobFactsOf(tests, readings, decisions, clashes);
+}
+
+/** One apprentice test on the job list: its part and positions, and a send-back's note. */
+export type SignOffLine = { id: string; part: string; note: string | null };
+export type JobSignOffs = { waiting: SignOffLine[]; sentBack: SignOffLine[]; signed: number };
+
+/**
+ * Per job: its apprentice tests that wait for a lead's sign-off, those sent back (with the
+ * note), and how many are signed off — what the job list shows.
+ */
+export async function signOffSummary(db: LocalDb, jobIds: string[], me: Me): Promise<Map<string, JobSignOffs>> {
+	const out = new Map<string, JobSignOffs>();
+	for (const jobId of jobIds) {
+		const { tests, readings, decisions } = await factRecords(db, jobId, me);
+		const states = signOffStates(tests, readings, decisions);
+		const sum: JobSignOffs = { waiting: [], sentBack: [], signed: 0 };
+		for (const t of tests) {
+			const s = states.get(t.id)!;
+			const line = { id: t.id, part: `${t.partNumber ?? 'Part not named'}${t.position ? ` · ${t.position}` : ''}`, note: null };
+			if (s.kind === 'waiting') sum.waiting.push(line);
+			else if (s.kind === 'sent_back') sum.sentBack.push({ ...line, note: s.last.note });
+			else if (s.kind === 'signed') sum.signed++;
+		}
+		out.set(jobId, sum);
+	}
+	return out;
 }

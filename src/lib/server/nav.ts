@@ -1,16 +1,19 @@
 /**
- * The counts beside the navigation's entries, for the signed-in user. Only the entries the
- * user sees are counted (a technician never asks for the workshop's clashes).
+ * The counts beside the navigation's entries, for the signed-in user: open clashes, and
+ * apprentice tests waiting for a lead's sign-off. Only the entries the user sees are counted
+ * (a technician never asks for the workshop's clashes).
  */
 import { QueryTypes } from 'sequelize';
 import { navFor, type NavCount, type NavEntry } from '../nav';
 import type { SessionUser } from './auth/types';
 import { db } from './db';
+import { countWaiting } from './services/signoffs';
 
 export type NavCounts = Partial<Record<NavCount, number>>;
 
 const COUNTERS: Record<NavCount, (user: SessionUser) => Promise<number>> = {
-	clashes: countOpenClashes
+	clashes: countOpenClashes,
+	signoffs: countWaiting
 };
 
 /** `{ clashes: n }` and so on, for each count an entry of `entries` shows. */

@@ -11,6 +11,10 @@ import { mayChangeReportSettings, mayReadCaughtMail, maySendReport, mayWithdrawR
 import { reportsOfJob, withdrawReport } from '$lib/server/reports/service';
 import { readReportSettings } from '$lib/server/reports/settings';
 import { jobTests } from '$lib/server/services/test-display';
+import { loadJobFacts } from '$lib/server/services/job-facts';
+import { decideTest } from '$lib/server/services/signoffs';
+import { refuseRetestedOk, refuseClose } from '$lib/rules';
+import { isLead } from '$lib/roles';
 import { jobFormOptions } from '../../options.server';
 
 const listOf = (fd: FormData): CodeList => (fd.get('list') === 'after' ? 'after' : 'before');
@@ -24,13 +28,20 @@ export async function load(event) {
 		if (e instanceof NotFoundError) error(404, 'No such job, or it is not assigned to you');
 		throw e;
 	});
-	const [history, tests] = await Promise.all([jobs.statusHistory(actor, id), jobTests(actor, id)]);
+	const [history, tests, facts] = await Promise.all([
+		jobs.statusHistory(actor, id),
+		jobTests(actor, id),
+		loadJobFacts(actor, id)
+	]);
 	return {
 		title: `Job ${job.number}`,
 		job,
 		history,
 		tests,
 		next: NEXT_STATUS[job.status],
+		/** What the work must still show before these moves (null: nothing missing). */
+		missing: { retested_ok: refuseRetestedOk(facts), closed: refuseClose(facts) },
+		signsOff: isLead(actor),
 		reports: {
 			list: await reportsOfJob(actor, id),
 			maySend: maySendReport(actor, job, await readReportSettings(actor.workshopId)),
@@ -87,6 +98,19 @@ export const actions = {
 			return failFrom(e, valuesOf(fd), `addCode-${list}`);
 		}
 		return { action: `addCode-${list}`, saved: true };
+	},
+	signoff: async (event) => {
+		const actor = actorOf(guardPage(event));
+		const fd = await event.request.formData();
+		const testId = String(fd.get('testId') ?? '');
+		const action = `signoff-${testId}`;
+		try {
+			if (!z.uuid().safeParse(testId).success) throw new NotFoundError('Test');
+			await decideTest(actor, testId, { decision: fd.get('decision') ?? undefined, note: fd.get('note') ?? undefined });
+		} catch (e) {
+			return failFrom(e, valuesOf(fd), action);
+		}
+		return { action, saved: true };
 	},
 	withdrawReport: async (event) => {
 		const actor = actorOf(guardPage(event));

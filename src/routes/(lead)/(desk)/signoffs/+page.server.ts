@@ -1,0 +1,23 @@
+import { guardPage, LEADS } from '$lib/server/auth/guards';
+import { actorOf } from '$lib/server/auth/types';
+import { User } from '$lib/server/db/models';
+import { listDue } from '$lib/server/services/signoffs';
+
+/** The apprentices' finished tests waiting for a lead, and those sent back (leads and owners). */
+export async function load(event) {
+	const actor = actorOf(guardPage(event, LEADS));
+	const [due, users] = await Promise.all([
+		listDue(actor),
+		User.findAll({ where: { workshopId: actor.workshopId }, attributes: ['id', 'name'] })
+	]);
+	const names = new Map(users.map((u) => [u.id, u.name]));
+	const items = due.map((d) => ({
+		...d,
+		by: (d.technicianId && names.get(d.technicianId)) || 'Someone no longer in the workshop'
+	}));
+	return {
+		title: 'Sign-offs',
+		waiting: items.filter((d) => d.due === 'lead'),
+		sentBack: items.filter((d) => d.due === 'apprentice')
+	};
+}
