@@ -8,7 +8,7 @@ import { getMeta, listByJob, setMeta, type LocalDb, type LocalRecord } from '../
 import type { Me } from '../client/session';
 import type { Role } from '../roles';
 import { buildJobTests, type JobTestsView, type SheetChecks } from '../tests/view';
-import { jobFactsOf, signOffStates, type FactDecision, type FactReading, type FactTest } from '../tests/facts';
+import { jobFactsOf, positionsText, signOffStates, type FactDecision, type FactReading, type FactTest } from '../tests/facts';
 import type { JobFacts } from '../rules';
 import { listIssues } from '../client/issues';
 import { readSheet } from './library';
@@ -154,7 +154,8 @@ export async function signOffSummary(db: LocalDb, jobIds: string[], me: Me): Pro
 		const sum: JobSignOffs = { waiting: [], sentBack: [], signed: 0 };
 		for (const t of tests) {
 			const s = states.get(t.id)!;
-			const line = { id: t.id, part: `${t.partNumber ?? 'Part not named'}${t.position ? ` · ${t.position}` : ''}`, note: null };
+			const where = positionsText(t.position);
+			const line = { id: t.id, part: `${t.partNumber ?? 'Part not named'}${where ? ` · ${where}` : ''}`, note: null };
 			if (s.kind === 'waiting') sum.waiting.push(line);
 			else if (s.kind === 'sent_back') sum.sentBack.push({ ...line, note: s.last.note });
 			else if (s.kind === 'signed') sum.signed++;

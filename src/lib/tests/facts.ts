@@ -33,6 +33,12 @@ export const positionsOf = (position: unknown) =>
 		.map((p) => p.trim())
 		.filter(Boolean);
 
+/** "cylinder 3", "cylinders 1, 2" ('' for none), as the lists name a test's positions. */
+export function positionsText(position: unknown): string {
+	const list = positionsOf(position);
+	return list.length ? `${list.length > 1 ? 'cylinders' : 'cylinder'} ${list.join(', ')}` : '';
+}
+
 const OUT_OF_SPEC = new Set(['low', 'high']);
 
 /** Each test's sign-off state, by test id. */

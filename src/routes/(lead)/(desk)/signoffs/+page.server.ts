@@ -2,6 +2,7 @@ import { guardPage, LEADS } from '$lib/server/auth/guards';
 import { actorOf } from '$lib/server/auth/types';
 import { User } from '$lib/server/db/models';
 import { listDue } from '$lib/server/services/signoffs';
+import { positionsText } from '$lib/tests/facts';
 
 /** The apprentices' finished tests waiting for a lead, and those sent back (leads and owners). */
 export async function load(event) {
@@ -13,6 +14,7 @@ export async function load(event) {
 	const names = new Map(users.map((u) => [u.id, u.name]));
 	const items = due.map((d) => ({
 		...d,
+		where: positionsText(d.positions),
 		by: (d.technicianId && names.get(d.technicianId)) || 'Someone no longer in the workshop'
 	}));
 	return {
