@@ -65,6 +65,15 @@ export class SyncEngine {
 		return r;
 	}
 
+	/** An answer's JSON body; one cut off on the way (the server died mid-answer) is transient. */
+	private async body<T>(r: Response): Promise<T> {
+		try {
+			return (await r.json()) as T;
+		} catch {
+			throw new Transient('The answer was cut off');
+		}
+	}
+
 	/** Push until the outbox is empty or a transient failure stops it. */
 	async pushAll(): Promise<number> {
 		let sent = 0;
@@ -90,7 +99,7 @@ export class SyncEngine {
 				continue;
 			}
 			if (!r.ok) throw new Transient(`Server answered ${r.status}`);
-			const { results } = (await r.json()) as { results: PushResult[] };
+			const { results } = await this.body<{ results: PushResult[] }>(r);
 			for (let i = 0; i < results.length; i++) {
 				const result = results[i];
 				if (result.status === 'rejected' && result.reason === 'server_error') throw new Transient('The server could not store an op');
@@ -131,7 +140,7 @@ export class SyncEngine {
 				if (cursor === 0) throw new Error('The server refused the pull');
 				continue;
 			}
-			const body = (await r.json()) as { changes: Change[]; cursor: number; more: boolean };
+			const body = await this.body<{ changes: Change[]; cursor: number; more: boolean }>(r);
 			await applyChanges(this.db, body.changes, body.cursor);
 			count += body.changes.length;
 			if (!body.more) return count;

@@ -77,6 +77,23 @@ describe('the sync client', () => {
 		expect(await countOutbox(db)).toBe(2);
 	});
 
+	it('treats an answer cut off mid-body (the server died while sending it) as offline and keeps every op', async () => {
+		const db = await dbWithOps(3);
+		const cutOff = () =>
+			new Response(
+				new ReadableStream({
+					start(c) {
+						c.enqueue(new TextEncoder().encode('{"results":[{"opId":'));
+						c.error(new TypeError('terminated'));
+					}
+				}),
+				{ status: 200, headers: { 'content-type': 'application/json' } }
+			);
+		const report = await new SyncEngine(db, 'dev-1', async () => cutOff()).syncOnce();
+		expect(report.state).toBe('offline');
+		expect(await countOutbox(db)).toBe(3);
+	});
+
 	it('keeps a rejected op as an issue without blocking the ops behind it', async () => {
 		const db = await dbWithOps(3);
 		const ops = await listOutbox(db);
