@@ -11,6 +11,7 @@
  * and one still running after SHUTDOWN_TIMEOUT (adapter-node's, 30 s) plus 5 s is killed.
  */
 import cluster from 'node:cluster';
+import http from 'node:http';
 import os from 'node:os';
 import path from 'node:path';
 import { pathToFileURL } from 'node:url';
@@ -33,10 +34,34 @@ const flags =
 		: process.env.APP_NODE_FLAGS.split(/\s+/).filter(Boolean);
 const app = pathToFileURL(path.resolve(import.meta.dirname, '..', 'build', 'index.js')).href;
 
+/**
+ * Headers for the answers adapter-node gives before the app's hooks run (the client build, the
+ * font, the service worker, the prerendered shell; OWASP ASVS 5.0 §3.4). The app sets its own
+ * on everything else (src/lib/server/security-headers.ts), replacing these. The shell's
+ * script and style rules come in its own <meta> policy (SvelteKit's hashes); a header cannot
+ * add to them, so this one names only what a <meta> policy cannot say.
+ */
+const STATIC_HEADERS = {
+	'content-security-policy': "object-src 'none'; base-uri 'none'; frame-ancestors 'none'",
+	'x-content-type-options': 'nosniff',
+	'referrer-policy': 'same-origin',
+	'x-frame-options': 'DENY'
+};
+
 if (cluster.isWorker) {
 	// After adapter-node's graceful stop, let go of the primary: the IPC channel would keep
 	// this process alive (the app's hook closes the database pool on the same event).
 	process.once('sveltekit:shutdown', () => cluster.worker?.disconnect());
+	// adapter-node creates its server with http.createServer(); every answer starts with the
+	// static headers, before any handler writes its own.
+	const createServer = http.createServer;
+	http.createServer = (...args) => {
+		const server = createServer(...args);
+		server.on('request', (_req, res) => {
+			for (const [name, value] of Object.entries(STATIC_HEADERS)) res.setHeader(name, value);
+		});
+		return server;
+	};
 	await import(app);
 } else {
 	cluster.setupPrimary({ execArgv: [...process.execArgv, ...flags] });

@@ -218,7 +218,7 @@ async function runScenario(steps: Step[], batches: number[]) {
 		const ops = [first.op];
 		while (ops.length < batches[b % batches.length] && i < steps.length) {
 			const next = steps[i];
-			if (next.type === 'pull' || next.type === 'resend' || next.device !== steps[i - 1].device) break;
+			if (next.type === 'pull' || next.type === 'resend' || next.device !== step.device) break;
 			const more = opFor(next);
 			i++;
 			if (more) ops.push(more.op);
