@@ -132,15 +132,11 @@ function sentOnce(seen: Push[], opIds: string[]) {
 	expect(new Set(accepted)).toEqual(new Set(opIds));
 }
 
-async function syncNow(page: Page = phone.page) {
-	if (!page.url().endsWith('/field/sync')) await page.goto(`${base}/field/sync`);
-	await page.getByRole('button', { name: 'Sync now' }).click();
-}
 
 describe('the phone when the server says no', () => {
 	it('keeps 2,000 readings through a session revoked mid-sync and sends the rest once after signing in', async () => {
 		const { page, context } = phone;
-		await page.goto(`${base}/field/sync`);
+		await page.goto(`${base}/field`);
 		await context.setOffline(true);
 		const { testId, opIds } = await queueReadings(page, 2000);
 		await page.reload();
@@ -156,8 +152,7 @@ describe('the phone when the server says no', () => {
 			await forward(push, route);
 		});
 		await context.route('**/api/sync/push', handler);
-		await context.setOffline(false);
-		await syncNow();
+		await context.setOffline(false); // the runner sends on `online`, or at its next try after the offline one
 		await expect.poll(() => badge().textContent(), { timeout: 30_000 }).toContain('Sign in to send');
 		expect(seen.map((p) => [p.opIds.length, p.status])).toEqual([[500, 200], [500, 200], [500, 401]]);
 		expect(await local()).toEqual({ waiting: 1001, issues: 0 });
@@ -224,11 +219,20 @@ describe('the phone when the server says no', () => {
 		const { testId, opIds } = await queueReadings(page, 599);
 		const second = await context.newPage();
 		watch(second, phone.errors);
-		// The runners start with the pages; hold their pushes back until both tabs have sent.
-		const hold = (route: Route) => (route.request().headers()['x-both-tabs'] ? route.continue() : route.abort('connectionrefused'));
-		await context.route('**/api/sync/push', hold);
+		await Promise.all([page.goto(`${base}/field`), second.goto(`${base}/field`)]); // offline: from the service worker
+		// Back online the runners send; their pushes are held back until both tabs have sent.
+		let holding = true;
+		const held: (() => void)[] = [];
+		const { seen, handler } = recordPushes(async (push, route, all) => {
+			if (route.request().headers()['x-both-tabs']) {
+				all.splice(all.indexOf(push), 1); // the tabs' own sends are judged by their answers
+				return route.continue();
+			}
+			if (holding) await new Promise<void>((go) => held.push(go));
+			await forward(push, route);
+		});
+		await context.route('**/api/sync/push', handler);
 		await context.setOffline(false);
-		await Promise.all([page.goto(`${base}/field/sync`), second.goto(`${base}/field/sync`)]);
 
 		// The same first batch, sent by both tabs at once, as a runner would send it.
 		const batch = await page.evaluate(async () => {
@@ -257,17 +261,14 @@ describe('the phone when the server says no', () => {
 		expect(statuses.filter((s) => s === 'duplicate')).toHaveLength(300);
 		expect(await stored(testId)).toEqual({ rows: 299, ops: 299 });
 
-		// Now both tabs' runners sync at the same moment: one at a time (navigator.locks).
-		await context.unroute('**/api/sync/push', hold);
-		const { seen, handler } = recordPushes(forward);
-		await context.route('**/api/sync/push', handler);
-		await Promise.all([syncNow(page), syncNow(second)]);
-		await expect.poll(() => badge().textContent(), { timeout: 30_000 }).toContain('All sent');
+		// The runners' pushes go on: one tab at a time (navigator.locks), each op sent once.
+		holding = false;
+		held.forEach((go) => go());
+		await expect.poll(() => local(), { timeout: 30_000 }).toEqual({ waiting: 0, issues: 0 });
 		const pushed = seen.flatMap((p) => p.opIds);
 		expect(pushed.length).toBe(new Set(pushed).size);
 		expect(new Set(pushed)).toEqual(new Set(opIds));
 		expect(await stored(testId)).toEqual({ rows: 599, ops: 599 });
-		expect(await local()).toEqual({ waiting: 0, issues: 0 });
 		await second.close();
 		await context.unroute('**/api/sync/push', handler);
 	});

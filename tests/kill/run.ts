@@ -139,6 +139,7 @@ async function main(): Promise<number> {
 			return fetch(base + url, { ...init, headers });
 		});
 		await closeDb();
+		if (kills < KILLS) v.problems.push(`only ${kills} of ${KILLS} kills were made`);
 		for (const problem of v.problems.slice(0, 20)) console.error(`  ${problem}`);
 		const cut = servers.reduce((n, s) => n + s.cut, 0);
 		say(`${cut} of the kills cut requests in flight; MariaDB restarts ${restarts}; feed 1..${v.feed.last}: ${v.feed.gaps} gaps, ${v.feed.duplicates} duplicates; ledger: ${v.phantom} unknown, ${v.refused} refused; ${phones.reduce((n, p) => n + p.syncs, 0)} sync rounds`);
