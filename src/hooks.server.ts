@@ -4,6 +4,8 @@ import { readSession } from '$lib/server/auth/session';
 import { closeDb, db } from '$lib/server/db';
 import { errorBody } from '$lib/server/errors';
 import { startMailWorker, stopMailWorker } from '$lib/server/mail/worker';
+import { refuseCrossSite, refuseUnreadableForm, shapeApiRefusal } from '$lib/server/request-rules';
+import { applySecurityHeaders } from '$lib/server/security-headers';
 
 db(); // registers the models once per server process
 
@@ -14,6 +16,10 @@ if (!building) startMailWorker();
 process.once('sveltekit:shutdown' as 'exit', () => void stopMailWorker().finally(closeDb));
 
 export const handle: Handle = async ({ event, resolve }) => {
+	// Another site's post, or a form post that is no form, never reaches a route.
+	const refused = refuseCrossSite(event) ?? (await refuseUnreadableForm(event));
+	if (refused) return applySecurityHeaders(refused, event);
+
 	const { user, sessionId } = await readSession(event.cookies, event.url);
 	event.locals.user = user;
 	event.locals.sessionId = sessionId;
@@ -22,18 +28,14 @@ export const handle: Handle = async ({ event, resolve }) => {
 	// server guard is here: with signal, a signed-out visitor goes to sign-in.
 	if (!user && event.route.id?.startsWith('/(app)') && !event.isDataRequest) {
 		const next = encodeURIComponent(event.url.pathname + event.url.search);
-		return new Response(null, { status: 303, headers: { location: `/sign-in?next=${next}` } });
+		return applySecurityHeaders(new Response(null, { status: 303, headers: { location: `/sign-in?next=${next}` } }), event);
 	}
 	if (event.url.pathname.startsWith('/api/') && !event.route.id) {
-		return Response.json(errorBody('not_found', 'No such API route'), { status: 404 });
+		return applySecurityHeaders(Response.json(errorBody('not_found', 'No such API route'), { status: 404 }), event);
 	}
 	// Fonts are preloaded too, so the text does not shift when the shipped font arrives.
 	const response = await resolve(event, {
 		preload: ({ type, path }) => type === 'js' || type === 'css' || (type === 'font' && path.endsWith('.woff2'))
 	});
-	response.headers.set('X-Content-Type-Options', 'nosniff');
-	response.headers.set('Referrer-Policy', 'same-origin');
-	response.headers.set('X-Frame-Options', 'DENY');
-	response.headers.set('Permissions-Policy', 'geolocation=(), microphone=()');
-	return response;
+	return applySecurityHeaders(await shapeApiRefusal(event.url, response), event);
 };

@@ -30,12 +30,28 @@ const host = process.env.HOST ?? '0.0.0.0';
 const port = Number(process.env.PORT ?? 3000);
 const shutdownTimeout = (Number(process.env.SHUTDOWN_TIMEOUT) || 30) * 1000;
 
+/**
+ * Headers for the answers adapter-node gives before the app's hooks run (the client build, the
+ * font, the service worker, the prerendered shell; OWASP ASVS 5.0 §3.4). The app sets its own
+ * on everything else (src/lib/server/security-headers.ts), replacing these. The shell's
+ * script and style rules come in its own <meta> policy (SvelteKit's hashes); a header cannot
+ * add to them, so this one names only what a <meta> policy cannot say.
+ */
+const STATIC_HEADERS = {
+	'content-security-policy': "object-src 'none'; base-uri 'none'; frame-ancestors 'none'",
+	'x-content-type-options': 'nosniff',
+	'referrer-policy': 'same-origin',
+	'x-frame-options': 'DENY'
+};
+
 let stopping = false;
 
 const server = http.createServer((req, res) => {
 	req.on('close', () => {
 		if (stopping) server.closeIdleConnections();
 	});
+	// Every answer starts with the static headers; the app's own replace them (see above).
+	for (const [name, value] of Object.entries(STATIC_HEADERS)) res.setHeader(name, value);
 	const refusal = prepareRequest(req, mode);
 	if (refusal) {
 		res.writeHead(refusal.status, { 'content-type': 'application/json' });

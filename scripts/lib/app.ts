@@ -1,5 +1,5 @@
 /** Shared by the start script and the end-to-end tests: migrate, build and serve. */
-import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { spawn, spawnSync, type ChildProcess, type StdioOptions } from 'node:child_process';
 import { existsSync, readdirSync, statSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import net from 'node:net';
@@ -78,7 +78,7 @@ export function buildIfNeeded(force = false): boolean {
 export async function serve(
 	port: number,
 	env: Record<string, string>,
-	stdio: 'inherit' | 'ignore' = 'inherit'
+	stdio: StdioOptions = 'inherit'
 ): Promise<{ child: ChildProcess; url: string }> {
 	const url = `http://localhost:${port}`;
 	const child = spawn(process.execPath, [path.join('scripts', 'serve.js')], {

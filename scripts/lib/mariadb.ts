@@ -20,7 +20,7 @@ import path from 'node:path';
 export const ROOT = path.resolve(import.meta.dirname, '..', '..');
 const DATA = path.join(ROOT, '.data');
 const DATADIR = path.join(DATA, 'mariadb');
-const CNF = path.join(DATA, 'mariadb.cnf');
+export const CNF = path.join(DATA, 'mariadb.cnf');
 const PORT_FILE = path.join(DATA, 'mariadb.port');
 const PID_FILE = path.join(DATA, 'mariadb.pid');
 const tag = createHash('sha1').update(ROOT).digest('hex').slice(0, 8);
@@ -32,7 +32,7 @@ export const APP_PASSWORD = process.env.DB_PASSWORD ?? 'fieldbench-local-only';
 const DEFAULT_PORT = Number(process.env.DB_PORT ?? 3307);
 const isRoot = process.getuid?.() === 0;
 
-function which(bin: string): string | null {
+export function which(bin: string): string | null {
 	for (const dir of ['/usr/sbin', '/usr/bin', '/usr/local/sbin', '/usr/local/bin']) {
 		if (existsSync(path.join(dir, bin))) return path.join(dir, bin);
 	}

@@ -13,7 +13,7 @@ import { existsSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 
 /** The runners of `npm test`, in the order it runs them. */
-export const RUNNERS = ['unit-integration', 'e2e'] as const;
+export const RUNNERS = ['unit-integration', 'kill', 'e2e'] as const;
 
 /** The parts of vitest's JSON report read here. */
 export interface VitestReport {

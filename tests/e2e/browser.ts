@@ -33,7 +33,7 @@ export async function openPhone(): Promise<{
 	});
 	const page = context.pages()[0] ?? (await context.newPage());
 	const errors: string[] = []; // uncaught errors in the page (a failed hydration shows here)
-	page.on('pageerror', (e) => errors.push(e.message));
+	watch(page, errors);
 	return {
 		context,
 		page,
@@ -43,6 +43,17 @@ export async function openPhone(): Promise<{
 			rmSync(profile, { recursive: true, force: true });
 		}
 	};
+}
+
+/**
+ * Collect a page's uncaught errors and every Content-Security-Policy violation it logs (OWASP
+ * ASVS 5.0 §3.4.3: the app must pass its own policy, service worker and font included).
+ */
+export function watch(page: Page, errors: string[]) {
+	page.on('pageerror', (e) => errors.push(e.message));
+	page.on('console', (m) => {
+		if (/Content Security Policy|Content-Security-Policy/i.test(m.text())) errors.push(`CSP: ${m.text()}`);
+	});
 }
 
 export async function shot(page: Page, name: string) {

@@ -1,4 +1,6 @@
 import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
+import { freePort, serve } from '../../scripts/lib/app';
+import { portFree } from '../../scripts/lib/mariadb';
 import { openPhone, shot, signInAs } from './browser';
 
 const base = inject('baseURL');
@@ -43,7 +45,8 @@ describe('the offline app', () => {
 		await page.goto(`${base}/field/job/${JOB_1001}`);
 		await page.getByTestId('complaint').waitFor();
 		await context.setOffline(true);
-		await page.reload();
+		const answer = await page.reload();
+		expect(answer?.fromServiceWorker(), 'the page came from the service worker').toBe(true);
 		await expect.poll(() => page.getByTestId('complaint').textContent()).toContain('Misfire at idle');
 		await shot(page, 'offline-2-job-reloaded-offline');
 
@@ -53,7 +56,7 @@ describe('the offline app', () => {
 		await expect.poll(() => badge().textContent()).toContain('2 waiting to send');
 		await shot(page, 'offline-3-edited-offline');
 
-		await page.reload();
+		expect((await page.reload())?.fromServiceWorker()).toBe(true);
 		await expect.poll(() => page.getByTestId('notes').textContent()).toContain('Coil 3 boot cracked');
 		expect(await page.getByLabel('Status').inputValue()).toBe('testing');
 		expect(await badge().textContent()).toContain('2 waiting to send');
@@ -70,11 +73,32 @@ describe('the offline app', () => {
 		await page.getByRole('button', { name: 'Sync now' }).click();
 		await expect.poll(() => badge().textContent(), { timeout: 20_000 }).toContain('All sent');
 		await shot(page, 'offline-6-synced');
-		expect(await page.getByText('Everything on this phone has been sent').count()).toBe(1);
+		await page.getByText('Everything on this phone has been sent').waitFor(); // the list re-reads after the badge
 		const r = await page.request.get(`${base}/api/jobs/${JOB_1001}`);
 		expect(r.status()).toBe(200);
 		const { job } = await r.json();
 		expect(job.status).toBe('testing');
 		expect(job.notes).toContain('Coil 3 boot cracked');
+	});
+
+	it('opens a deep URL never visited before with the app server stopped, from the service worker', async () => {
+		// A second app server on its own port (a new origin for the browser), on the same database.
+		const port = await freePort(4500);
+		const second = await serve(port, inject('dbEnv'), 'ignore');
+		const { page, context } = phone;
+		try {
+			await context.setOffline(false);
+			await signInAs(phone, second.url, 'tech@tallowbridge.example');
+			await page.getByTestId('job-list').getByText('Job 1001').waitFor();
+			await expect.poll(() => page.evaluate(() => Boolean(navigator.serviceWorker.controller)), { timeout: 20_000 }).toBe(true);
+		} finally {
+			process.kill(-second.child.pid!, 'SIGKILL');
+		}
+		await expect.poll(() => portFree(port), { timeout: 10_000 }).toBe(true);
+		// The browser is online; the server is gone. This job's page was never opened here.
+		const answer = await page.goto(`${second.url}/field/job/${JOB_1001}`);
+		expect(answer?.fromServiceWorker(), 'the page came from the service worker').toBe(true);
+		await expect.poll(() => page.getByTestId('complaint').textContent(), { timeout: 15_000 }).toContain('Misfire at idle');
+		await shot(page, 'offline-7-server-stopped');
 	});
 });

@@ -223,17 +223,17 @@ describe('session lifetime', () => {
 		expect((await d.get('/api/me')).status).toBe(401);
 	});
 
-	it('slides a session used in the second half of its 30 days to a new expiry, and keeps a young one', async () => {
+	it('slides a session used in the second half of its 7 idle days to a new expiry, and keeps a young one', async () => {
 		const w = await makeWorkshop('Sliding');
 		const c = client();
 		expect((await c.signIn(w.users.technician.email, TEST_PASSWORD)).status).toBe(303);
 		const young = (await sessionOf(c))!.expiresAt.getTime();
 		expect((await c.get('/api/me')).status).toBe(200);
 		expect((await sessionOf(c))!.expiresAt.getTime()).toBe(young);
-		const tenDays = new Date(Date.now() + 10 * 86_400_000);
-		await Session.update({ expiresAt: tenDays }, { where: { id: c.cookies.get('fb_session')! } });
+		const twoDays = new Date(Date.now() + 2 * 86_400_000);
+		await Session.update({ expiresAt: twoDays }, { where: { id: c.cookies.get('fb_session')! } });
 		expect((await c.get('/api/me')).status).toBe(200);
 		const slid = (await sessionOf(c))!.expiresAt.getTime();
-		expect(slid).toBeGreaterThan(Date.now() + 29 * 86_400_000);
+		expect(slid).toBeGreaterThan(Date.now() + 6.9 * 86_400_000);
 	});
 });

@@ -4,8 +4,9 @@
  * Push: the oldest ops in batches; each answer removes its entry. `applied`, `merged` and
  * `duplicate` are done; `conflict` is kept as an issue (the lead settles it); `rejected` is
  * kept as an issue with its reason and never blocks the queue — except `server_error`,
- * which is transient. A transient failure (no network, 5xx, 429, `server_error`) stops the
- * push with that entry still at the head; a 401 pauses until the user signs in again and
+ * which is transient. A transient failure (no network, 5xx, 429, `server_error`, an answer
+ * cut off) stops the push with that entry still at the head (a 429's Retry-After is passed
+ * on in the report, for the runner to wait that long); a 401 pauses until the user signs in again and
  * never drops anything; a 413 halves the batch.
  * Pull: from the stored cursor until `more` is false; upserts keep local unsent fields on
  * top; `evict` removes a job and everything under it. Then the clashes the lead has settled
@@ -18,12 +19,37 @@ import { countOutbox, peekOutbox } from './outbox';
 import { PUSH_BATCH, type Change, type PushResult } from '../sync/protocol';
 
 export type SyncState = 'idle' | 'syncing' | 'offline' | 'signed_out' | 'error';
-export type SyncReport = { state: SyncState; pushed: number; pulled: number; waiting: number; issues: number; error?: string };
+export type SyncReport = {
+	state: SyncState;
+	pushed: number;
+	pulled: number;
+	waiting: number;
+	issues: number;
+	error?: string;
+	/** The server asked to wait this long before trying again (a 429's Retry-After). */
+	retryAfterMs?: number;
+};
 type Fetch = (input: string, init?: RequestInit) => Promise<Response>;
 
 const CURSOR = 'cursor';
 
-class Transient extends Error {}
+class Transient extends Error {
+	constructor(
+		message: string,
+		readonly retryAfterMs?: number
+	) {
+		super(message);
+	}
+}
+
+/** A Retry-After header (seconds, or an HTTP date) in milliseconds from `now`; undefined when absent or unreadable. */
+export function retryAfterMs(header: string | null, now = Date.now()): number | undefined {
+	if (!header) return undefined;
+	const value = header.trim();
+	if (/^\d+$/.test(value)) return Number(value) * 1000;
+	const at = Date.parse(value);
+	return Number.isNaN(at) ? undefined : Math.max(0, at - now);
+}
 class SignedOut extends Error {}
 
 export class SyncEngine {
@@ -47,7 +73,8 @@ export class SyncEngine {
 		} catch (e) {
 			const state: SyncState = e instanceof SignedOut ? 'signed_out' : e instanceof Transient ? 'offline' : 'error';
 			if (state === 'error') console.error('sync failed', e);
-			return { state, pushed, pulled, ...(await this.counts()), error: (e as Error).message };
+			const retryAfterMs = e instanceof Transient ? e.retryAfterMs : undefined;
+			return { state, pushed, pulled, ...(await this.counts()), error: (e as Error).message, ...(retryAfterMs !== undefined ? { retryAfterMs } : {}) };
 		}
 	}
 
@@ -63,8 +90,18 @@ export class SyncEngine {
 			throw new Transient('No connection');
 		}
 		if (r.status === 401) throw new SignedOut('Signed out');
-		if (r.status >= 500 || r.status === 429) throw new Transient(`Server answered ${r.status}`);
+		if (r.status === 429) throw new Transient('The server asked to wait', retryAfterMs(r.headers.get('retry-after')));
+		if (r.status >= 500) throw new Transient(`Server answered ${r.status}`);
 		return r;
+	}
+
+	/** An answer's JSON body; one cut off on the way (the server died mid-answer) is transient. */
+	private async body<T>(r: Response): Promise<T> {
+		try {
+			return (await r.json()) as T;
+		} catch {
+			throw new Transient('The answer was cut off');
+		}
 	}
 
 	/** Push until the outbox is empty or a transient failure stops it. */
@@ -92,7 +129,7 @@ export class SyncEngine {
 				continue;
 			}
 			if (!r.ok) throw new Transient(`Server answered ${r.status}`);
-			const { results } = (await r.json()) as { results: PushResult[] };
+			const { results } = await this.body<{ results: PushResult[] }>(r);
 			for (let i = 0; i < results.length; i++) {
 				const result = results[i];
 				if (result.status === 'rejected' && result.reason === 'server_error') throw new Transient('The server could not store an op');
@@ -152,7 +189,7 @@ export class SyncEngine {
 				if (cursor === 0) throw new Error('The server refused the pull');
 				continue;
 			}
-			const body = (await r.json()) as { changes: Change[]; cursor: number; more: boolean };
+			const body = await this.body<{ changes: Change[]; cursor: number; more: boolean }>(r);
 			await applyChanges(this.db, body.changes, body.cursor);
 			count += body.changes.length;
 			if (!body.more) return count;

@@ -103,7 +103,8 @@ export async function syncNow(): Promise<SyncReport | null> {
 		if (r.state === 'idle') syncStatus.lastSyncAt = new Date().toISOString();
 		failures = r.state === 'idle' || r.state === 'signed_out' ? 0 : failures + 1;
 	} else if (syncStatus.state === 'syncing') syncStatus.state = 'idle'; // another tab is syncing
-	schedule(failures ? backoffMs(failures - 1) : TIMER_MS);
+	// After a failure: back off (exponential, with jitter), and never sooner than the server asked.
+	schedule(failures ? Math.max(backoffMs(failures - 1), r?.retryAfterMs ?? 0) : TIMER_MS);
 	return r;
 }
 

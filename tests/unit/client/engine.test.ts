@@ -1,7 +1,7 @@
 import 'fake-indexeddb/auto';
 import { v7 as uuidv7 } from 'uuid';
 import { describe, expect, it } from 'vitest';
-import { applyChanges, backoffMs, SyncEngine } from '../../../src/lib/client/engine';
+import { applyChanges, backoffMs, retryAfterMs, SyncEngine } from '../../../src/lib/client/engine';
 import { getMeta, getRecord, openLocalDb } from '../../../src/lib/client/local-db';
 import { countOutbox, listOutbox, writeLocal } from '../../../src/lib/client/outbox';
 import type { Op } from '../../../src/lib/sync/protocol';
@@ -75,6 +75,38 @@ describe('the sync client', () => {
 		});
 		expect((await engine.syncOnce()).state).toBe('offline');
 		expect(await countOutbox(db)).toBe(2);
+	});
+
+	it('treats an answer cut off mid-body (the server died while sending it) as offline and keeps every op', async () => {
+		const db = await dbWithOps(3);
+		const cutOff = () =>
+			new Response(
+				new ReadableStream({
+					start(c) {
+						c.enqueue(new TextEncoder().encode('{"results":[{"opId":'));
+						c.error(new TypeError('terminated'));
+					}
+				}),
+				{ status: 200, headers: { 'content-type': 'application/json' } }
+			);
+		const report = await new SyncEngine(db, 'dev-1', async () => cutOff()).syncOnce();
+		expect(report.state).toBe('offline');
+		expect(await countOutbox(db)).toBe(3);
+	});
+
+	it('passes on how long a 429 asks to wait, and keeps every op', async () => {
+		const db = await dbWithOps(2);
+		const busy = () => new Response(JSON.stringify({ error: { code: 'throttled', message: 'Busy' } }), { status: 429, headers: { 'retry-after': '7' } });
+		const report = await new SyncEngine(db, 'dev-1', async () => busy()).syncOnce();
+		expect(report).toMatchObject({ state: 'offline', retryAfterMs: 7000, waiting: 2 });
+	});
+
+	it('reads Retry-After as seconds or as an HTTP date (RFC 9110 §10.2.3)', () => {
+		const now = Date.parse('2031-03-04T09:15:00Z');
+		expect(retryAfterMs('120', now)).toBe(120_000);
+		expect(retryAfterMs('Tue, 04 Mar 2031 09:15:30 GMT', now)).toBe(30_000);
+		expect(retryAfterMs('soon', now)).toBeUndefined();
+		expect(retryAfterMs(null, now)).toBeUndefined();
 	});
 
 	it('keeps a rejected op as an issue without blocking the ops behind it', async () => {

@@ -8,8 +8,12 @@
  *     changes nothing; a run of append-only creates is applied in bulk inside one savepoint,
  *     trusting the unique keys to catch a stored record (see `applyRun`); a mutable op is
  *     applied inside its own savepoint through its aggregate's service;
- *  3. an op that throws is rolled back alone and answered `rejected: server_error`;
+ *  3. an op that throws is rolled back alone and answered `rejected: server_error`, and so is
+ *     every op after it in the batch, unapplied: the phone keeps them in order and sends them
+ *     again (an op after it may depend on it — a reading on the test that failed);
  *  4. the first answers go into the ledger in the same transaction as their effects.
+ * When MariaDB ends the whole transaction (a deadlock between two pushes) the push starts
+ * again from step 1, a few times, before answering 500.
  */
 import type { Transaction } from 'sequelize';
 import { rawQuery } from '../db/raw';
@@ -24,17 +28,45 @@ const savepoint = <T>(t: Transaction, fn: (sp: Transaction) => Promise<T>) =>
 	db().transaction({ transaction: t }, fn);
 
 const failed = (op: Op): PushResult => ({ opId: op.opId, status: 'rejected', reason: 'server_error' });
+const isFailed = (r: PushResult) => r.status === 'rejected' && r.reason === 'server_error';
+
+/**
+ * Errors after which the transaction is gone or must not go on: a deadlock (1213, InnoDB
+ * rolls the whole transaction back) or a lock wait timeout (1205).
+ */
+export function endsTransaction(e: unknown): boolean {
+	const err = e as { errno?: number; parent?: { errno?: number }; original?: { errno?: number } } | null;
+	const errno = err?.errno ?? err?.parent?.errno ?? err?.original?.errno;
+	return errno === 1213 || errno === 1205;
+}
+/** Transactions that met such an error: their push starts again. */
+const lost = new WeakSet<Transaction>();
+/** Rethrow an error that ends the transaction (marking it); log any other. */
+function unlessLost(t: Transaction, e: unknown, what: string) {
+	if (endsTransaction(e)) {
+		lost.add(t);
+		throw e;
+	}
+	console.error(what, e);
+}
 
 type AppendActor = Parameters<typeof applyAppendOps>[0];
 
-/** A run of append-only creates, op by op, each in its own savepoint (after a failure). */
+/**
+ * A run of append-only creates, op by op, each in its own savepoint (after a failure); after
+ * an op fails the rest are not applied (they are answered `server_error` and come again).
+ */
 async function oneByOne(actor: AppendActor, run: Op[], t: Transaction) {
 	const out: PushResult[] = [];
 	for (const op of run) {
+		if (out.some(isFailed)) {
+			out.push(failed(op));
+			continue;
+		}
 		try {
 			out.push(...(await savepoint(t, (sp) => applyAppendOps(actor, [op], sp))));
 		} catch (e) {
-			console.error('sync: append op failed', e);
+			unlessLost(t, e, 'sync: append op failed');
 			out.push(failed(op));
 		}
 	}
@@ -57,7 +89,7 @@ async function applyRun(actor: AppendActor, run: Op[], t: Transaction, likelySto
 	try {
 		prepared = await prepareAppendOps(actor, run, t);
 	} catch (e) {
-		console.error('sync: append run failed', e);
+		unlessLost(t, e, 'sync: append run failed');
 		return run.length === 1 ? [failed(run[0])] : oneByOne(actor, run, t);
 	}
 	const refused = run.filter((_, i) => !hasRow(prepared[i]));
@@ -70,7 +102,7 @@ async function applyRun(actor: AppendActor, run: Op[], t: Transaction, likelySto
 		});
 	} catch (e) {
 		if (!isDuplicateKey(e)) {
-			console.error('sync: append run failed', e);
+			unlessLost(t, e, 'sync: append run failed');
 			return run.length === 1 ? [failed(run[0])] : oneByOne(actor, run, t);
 		}
 	}
@@ -92,7 +124,7 @@ async function applyChecked(actor: AppendActor, run: Op[], prepared: PreparedOp[
 				: await prepareAppendOps(actor, fresh, t);
 			applied = await savepoint(t, (sp) => insertAppendOps(actor, rows, sp));
 		} catch (e) {
-			console.error('sync: append run failed', e);
+			unlessLost(t, e, 'sync: append run failed');
 			applied = await oneByOne(actor, fresh, t);
 		}
 	}
@@ -110,8 +142,23 @@ const duplicateOf = (first: PushResult): PushResult => ({
 	firstStatus: first.status as never
 });
 
+/** Apply a push (see the steps above), starting again when MariaDB ended its transaction. */
 export async function pushOps(user: SessionUser, body: PushBody): Promise<PushResult[]> {
+	for (let attempt = 1; ; attempt++) {
+		let tried: Transaction | null = null;
+		try {
+			return await pushOnce(user, body, (t) => (tried = t));
+		} catch (e) {
+			const again = (tried && lost.has(tried)) || endsTransaction(e);
+			if (!again || attempt >= 5) throw e;
+			await new Promise((r) => setTimeout(r, Math.random() * 40 * attempt));
+		}
+	}
+}
+
+async function pushOnce(user: SessionUser, body: PushBody, started: (t: Transaction) => void): Promise<PushResult[]> {
 	return db().transaction(async (t) => {
+		started(t);
 		// The device's row first (the lock), then the ledger: sent together, run in this order.
 		const probe = body.ops.find((o) => isAppendOnly(o.entity) && o.kind === 'create');
 		const [, { seen, probeStored }] = await Promise.all([
@@ -135,6 +182,11 @@ export async function pushOps(user: SessionUser, body: PushBody): Promise<PushRe
 		});
 		const ops = body.ops;
 		for (let i = 0; i < ops.length; ) {
+			if (results.some(isFailed)) {
+				// An op failed: the rest wait for the phone to send them again, in order.
+				results.push(...ops.slice(i).map(failed));
+				break;
+			}
 			const first = seen.get(ops[i].opId);
 			if (first) {
 				results.push(duplicateOf(first));
@@ -171,7 +223,7 @@ export async function pushOps(user: SessionUser, body: PushBody): Promise<PushRe
 				try {
 					result = await savepoint(t, (sp) => applyMutableOp(actorFor(op), op, sp));
 				} catch (e) {
-					console.error('sync: op failed', e);
+					unlessLost(t, e, 'sync: op failed');
 					result = failed(op);
 				}
 			}

@@ -1,5 +1,5 @@
 import { redirect } from '@sveltejs/kit';
-import { endSession } from '$lib/server/auth/session';
+import { endEverySession } from '$lib/server/auth/session';
 
 export function load({ locals }) {
 	if (!locals.user) redirect(303, '/sign-in');
@@ -7,8 +7,9 @@ export function load({ locals }) {
 }
 
 export const actions = {
+	/** Sign out everywhere: every session of this user ends (OWASP ASVS 5.0 §7.4.1). */
 	default: async ({ locals, cookies, url }) => {
-		if (locals.sessionId) await endSession(locals.sessionId, cookies, url);
+		if (locals.user) await endEverySession(locals.user.id, cookies, url);
 		locals.user = null;
 		locals.sessionId = null;
 		redirect(303, '/sign-in');

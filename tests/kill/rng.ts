@@ -1,0 +1,22 @@
+/** A small seeded random number generator (mulberry32), so a failing run can be repeated. */
+export type Rng = {
+	next(): number;
+	int(min: number, max: number): number;
+	pick<T>(items: readonly T[]): T;
+};
+
+export function makeRng(seed: number): Rng {
+	let a = seed >>> 0;
+	const next = () => {
+		a = (a + 0x6d2b79f5) >>> 0;
+		let t = a;
+		t = Math.imul(t ^ (t >>> 15), t | 1);
+		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+	};
+	return {
+		next,
+		int: (min, max) => min + Math.floor(next() * (max - min + 1)),
+		pick: (items) => items[Math.floor(next() * items.length)]
+	};
+}
