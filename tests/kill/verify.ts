@@ -13,7 +13,7 @@ import { SyncEngine } from '../../src/lib/client/engine';
 import type { LocalDb, LocalRecord } from '../../src/lib/client/local-db';
 import { countOutbox } from '../../src/lib/client/outbox';
 import { db } from '../../src/lib/server/db';
-import { APPEND_TABLES } from '../../src/lib/server/sync/append-tables';
+import { APPEND_TABLES } from '../../src/lib/server/db/append-tables';
 import type { Op } from '../../src/lib/sync/protocol';
 import { openPhoneDb, type Phone } from './phone';
 
