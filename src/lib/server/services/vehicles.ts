@@ -31,6 +31,7 @@ const FIELDS = [
 	'model',
 	'year',
 	'engineCode',
+	'cylinders',
 	'odometer',
 	'odometerUnit',
 	'hybrid'
@@ -64,6 +65,7 @@ export type VehicleRecord = {
 	model: string;
 	year: number | null;
 	engineCode: string | null;
+	cylinders: number | null;
 	odometer: number | null;
 	odometerUnit: 'km' | 'mi';
 	hybrid: boolean;

@@ -10,7 +10,7 @@
  * the commit.
  */
 import type { Transaction } from 'sequelize';
-import { evaluateReading, meterFor, sameResult, type CheckSpec, type TemperatureSnapshot } from '../../flow/reading';
+import { evaluateReading, meterFor, rangeQuantityOf, sameResult, type CheckSpec, type TemperatureSnapshot, type VisualFinding } from '../../flow/reading';
 import { readingCreate, signoffCreate, sparkTestCreate, swapTestCreate } from '../../schemas/records';
 import type { Op, PushResult, Reason } from '../../sync/protocol';
 import { stringifyNumbers } from '../../sync/json';
@@ -31,12 +31,13 @@ type MeterSetup = Parameters<typeof meterFor>[0];
 type TestInfo = TestRow & {
 	meterSetup: MeterSetup;
 	tempSnap: TemperatureSnapshot;
-	meters: Map<string | null, ReturnType<typeof meterFor>>;
+	meters: Map<string, ReturnType<typeof meterFor>>;
 	sheetChecks: CheckSpec[] | undefined;
 };
-const meterOf = (test: TestInfo, rangeLabel: string | null) => {
-	let m = test.meters.get(rangeLabel);
-	if (!m) test.meters.set(rangeLabel, (m = meterFor(test.meterSetup, rangeLabel)));
+const meterOf = (test: TestInfo, rangeLabel: string | null, quantity: string) => {
+	const key = `${quantity}|${rangeLabel}`;
+	let m = test.meters.get(key);
+	if (!m) test.meters.set(key, (m = meterFor(test.meterSetup, rangeLabel, rangeQuantityOf(quantity))));
 	return m;
 };
 /**
@@ -53,7 +54,7 @@ const BASE = ['workshop_id', 'id', 'op_id', 'created_by', 'device_id', 'device_t
  * building a 15-key object by spreading another costs more than the rest of a reading.
  */
 const COLUMNS: Record<AppendTable, readonly string[]> = {
-	readings: [...BASE, 'check_key', 'position', 'samples', 'range_label', 'device_result', 'server_result', 'mismatch'],
+	readings: [...BASE, 'check_key', 'position', 'samples', 'visual', 'range_label', 'device_result', 'server_result', 'mismatch'],
 	signoffs: [...BASE, 'mode', 'note'],
 	spark_tests: [...BASE, 'note', 'position', 'gap_mm', 'outcome'],
 	swap_tests: [...BASE, 'note', 'from_position', 'to_position', 'before_counts', 'after_counts', 'conclusion']
@@ -145,14 +146,16 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 			const check = checks?.find((c) => c.key === f.checkKey);
 			if (checks && !check) return reject(op, 'invalid', `checkKey: no check ${f.checkKey} on the pinned sheet`);
 			const spec = check ?? { key: f.checkKey as string, quantity: 'resistance', unit: 'Ω', openOk: false, bands: [] };
-			const server = evaluateReading(spec, f.samples as never, meterOf(test, (f.rangeLabel as string | null | undefined) ?? null), test.tempSnap);
+			const visual = (f.visual as VisualFinding | null | undefined) ?? null;
+			const meter = meterOf(test, (f.rangeLabel as string | null | undefined) ?? null, spec.quantity);
+			const server = evaluateReading(spec, f.samples as never, meter, test.tempSnap, visual);
 			const device = f.deviceResult as { value: number | null; verdict: string } | null | undefined;
 			const mismatch = device != null && !sameResult(device as never, server);
 			const samples = JSON.stringify(f.samples);
 			const prepared: Prepared = {
 				op,
 				table: 'readings',
-				row: row(test.job_id, test.id, f.checkKey, f.position ?? null, samples, f.rangeLabel ?? null, device ? toJson(device) : null, toJson(server), mismatch ? 1 : 0),
+				row: row(test.job_id, test.id, f.checkKey, f.position ?? null, samples, visual ? JSON.stringify(visual) : null, f.rangeLabel ?? null, device ? toJson(device) : null, toJson(server), mismatch ? 1 : 0),
 				same: `${f.checkKey}|${samples}`
 			};
 			if (mismatch) prepared.mismatch = { device: String(device!.verdict), server: server.verdict };

@@ -2,7 +2,7 @@
 import { parseNumbers } from '../../sync/json';
 
 const camel = (s: string) => s.replace(/_([a-z])/g, (_m, c: string) => c.toUpperCase());
-const JSON_COLUMNS = new Set(['samples', 'device_result', 'server_result', 'before_counts', 'after_counts']);
+const JSON_COLUMNS = new Set(['samples', 'visual', 'device_result', 'server_result', 'before_counts', 'after_counts']);
 const HIDDEN = new Set(['workshop_id', 'op_id', 'seq']);
 
 export function appendRecord(entity: string, row: Record<string, unknown>): Record<string, unknown> {

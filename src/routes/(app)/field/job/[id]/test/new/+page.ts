@@ -1,6 +1,6 @@
 import { error } from '@sveltejs/kit';
 import { readJob } from '$lib/local/jobs';
-import { getLeadZero, getMeters, listParts } from '$lib/local/library';
+import { getLastLeadZero, getMeters, listParts } from '$lib/local/library';
 import { local } from '$lib/client/session';
 
 export async function load({ params, parent }) {
@@ -8,6 +8,6 @@ export async function load({ params, parent }) {
 	const { db } = await local();
 	const job = await readJob(db, params.id);
 	if (!job) error(404, { message: 'This job is not on this phone.' });
-	const [parts, meters, leadZero] = await Promise.all([listParts(db, job.vehicle), getMeters(db), getLeadZero(db)]);
-	return { me, job, parts, meters, leadZero };
+	const [parts, meters, lastLeads] = await Promise.all([listParts(db, job.vehicle), getMeters(db), getLastLeadZero(db)]);
+	return { me, job, parts, meters, lastLeads };
 }
