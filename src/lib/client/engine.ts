@@ -17,13 +17,24 @@ import { countOutbox, peekOutbox } from './outbox';
 import { PUSH_BATCH, type Change, type Op, type PushResult } from '../sync/protocol';
 
 export type SyncState = 'idle' | 'syncing' | 'offline' | 'signed_out' | 'error';
-export type SyncReport = { state: SyncState; pushed: number; pulled: number; waiting: number; issues: number; error?: string };
+/**
+ * Why a sync stopped, as a code (the screens say it in words, see `sync-words.ts`): no
+ * connection, the server busy or failing (5xx, 429), an op the server could not store, the
+ * pull's cursor refused twice, signed out, or something unexpected.
+ */
+export type SyncProblem = 'no_connection' | 'server_busy' | 'server_error' | 'store_failed' | 'pull_refused' | 'signed_out' | 'unexpected';
+export type SyncReport = { state: SyncState; pushed: number; pulled: number; waiting: number; issues: number; error?: SyncProblem };
 type Fetch = (input: string, init?: RequestInit) => Promise<Response>;
 
 const CURSOR = 'cursor';
 
-class Transient extends Error {}
-class SignedOut extends Error {}
+class Problem extends Error {
+	constructor(readonly code: SyncProblem) {
+		super(code);
+	}
+}
+class Transient extends Problem {}
+class SignedOut extends Problem {}
 
 export class SyncEngine {
 	batch = PUSH_BATCH;
@@ -45,7 +56,7 @@ export class SyncEngine {
 		} catch (e) {
 			const state: SyncState = e instanceof SignedOut ? 'signed_out' : e instanceof Transient ? 'offline' : 'error';
 			if (state === 'error') console.error('sync failed', e);
-			return { state, pushed, pulled, ...(await this.counts()), error: (e as Error).message };
+			return { state, pushed, pulled, ...(await this.counts()), error: e instanceof Problem ? e.code : 'unexpected' };
 		}
 	}
 
@@ -58,10 +69,10 @@ export class SyncEngine {
 		try {
 			r = await this.fetcher(url, { credentials: 'same-origin', ...init });
 		} catch {
-			throw new Transient('No connection');
+			throw new Transient('no_connection');
 		}
-		if (r.status === 401) throw new SignedOut('Signed out');
-		if (r.status >= 500 || r.status === 429) throw new Transient(`Server answered ${r.status}`);
+		if (r.status === 401) throw new SignedOut('signed_out');
+		if (r.status >= 500 || r.status === 429) throw new Transient(r.status === 429 || r.status === 503 ? 'server_busy' : 'server_error');
 		return r;
 	}
 
@@ -89,11 +100,11 @@ export class SyncEngine {
 				await this.settleEntry(bad.seq!, { opId: bad.op.opId, status: 'rejected', reason: 'invalid', message: body?.error?.message }, bad.op);
 				continue;
 			}
-			if (!r.ok) throw new Transient(`Server answered ${r.status}`);
+			if (!r.ok) throw new Transient('server_error');
 			const { results } = (await r.json()) as { results: PushResult[] };
 			for (let i = 0; i < results.length; i++) {
 				const result = results[i];
-				if (result.status === 'rejected' && result.reason === 'server_error') throw new Transient('The server could not store an op');
+				if (result.status === 'rejected' && result.reason === 'server_error') throw new Transient('store_failed');
 				await this.settleEntry(entries[i].seq!, result, entries[i].op);
 				sent++;
 			}
@@ -128,7 +139,7 @@ export class SyncEngine {
 			if (r.status === 400) {
 				// The feed does not know this cursor (e.g. another database): start again.
 				await setMeta(this.db, CURSOR, 0);
-				if (cursor === 0) throw new Error('The server refused the pull');
+				if (cursor === 0) throw new Problem('pull_refused');
 				continue;
 			}
 			const body = (await r.json()) as { changes: Change[]; cursor: number; more: boolean };
