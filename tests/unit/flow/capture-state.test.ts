@@ -116,6 +116,17 @@ describe('the capture screen’s state', () => {
 		const { c, drafts } = setup({ hybrid: true });
 		c.type('0,6');
 		c.acknowledge();
-		expect(drafts.at(-1)).toMatchObject({ index: 0, cells: { '1|primary': { entry: '0,6' } }, acked: [c.caution.key] });
+		expect(drafts.at(-1)).toMatchObject({ index: 0, cells: { '1|primary': { entry: '0,6' } }, acked: c.caution.list.map((l) => l.id) });
+	});
+});
+
+describe('a caution card across cells', () => {
+	it('opens in full again only for lines not yet acknowledged in this test', async () => {
+		const { c } = setup();
+		c.acknowledge();
+		expect(c.folded).toBe(true);
+		// A line never acknowledged (a part's own caution, say) brings the card back in full.
+		c.acked = c.acked.filter((id) => id !== 'own_pins');
+		expect(c.folded).toBe(false);
 	});
 });

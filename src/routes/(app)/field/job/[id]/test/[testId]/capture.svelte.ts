@@ -46,13 +46,15 @@ export class Capture {
 	private readonly io: CaptureIO;
 	index = $state(0);
 	drafts = $state<Record<string, CellDraft>>({});
-	/** Caution sets acknowledged in this test (they fold to one line). */
+	/** Caution lines acknowledged in this test (a card whose lines all are folds to one line). */
 	acked = $state<string[]>([]);
 	/** A folded caution opened again by a tap. */
 	cautionOpen = $state(false);
 	/** The "read the leads again" form, and what is typed in it. */
 	leadsForm = $state<string | null>(null);
 	busy = $state(false);
+	/** The time the lead reading's age is told against (moved on by `tick`). */
+	clock = $state(0);
 
 	constructor(
 		data: () => CaptureData,
@@ -61,6 +63,7 @@ export class Capture {
 	) {
 		this.data = data;
 		this.io = io;
+		this.clock = (io.now ?? Date.now)();
 		this.index = Math.max(0, Math.min(draft.index, 1000));
 		this.drafts = draft.cells ?? {};
 		this.acked = draft.acked ?? [];
@@ -107,15 +110,13 @@ export class Capture {
 			hot: this.temperature?.mode === 'just_run'
 		})
 	);
-	/** Whether the caution shows folded: acknowledged (or seen, for ones that need no tap) in this test. */
-	readonly folded = $derived.by(() => this.acked.includes(this.caution.key) && !this.cautionOpen);
+	/** Every line of the step's caution was acknowledged (or seen, for ones that need no tap) in this test. */
+	readonly acknowledged = $derived.by(() => this.caution.list.every((l) => this.acked.includes(l.id)));
+	/** Whether the caution shows folded to one line (a tap opens it again). */
+	readonly folded = $derived.by(() => this.acknowledged && !this.cautionOpen);
 	/** Save waits for a high-risk caution's tap and for a result that may be saved. */
-	readonly canSave = $derived.by(
-		() => this.view.canSave && (!this.caution.needsTap || this.acked.includes(this.caution.key))
-	);
-	readonly leadsAge = $derived.by(() =>
-		leadsAge(this.meter.leadReadAt, (this.io.now ?? Date.now)())
-	);
+	readonly canSave = $derived.by(() => this.view.canSave && (!this.caution.needsTap || this.acknowledged));
+	readonly leadsAge = $derived.by(() => leadsAge(this.meter.leadReadAt, this.clock));
 	readonly rows = $derived.by(() =>
 		compareRows(this.data().sheet.checks, this.positions, this.saved, this.meter, this.temperature)
 	);
@@ -140,6 +141,9 @@ export class Capture {
 		this.keep();
 	}
 
+	tick() {
+		this.clock = (this.io.now ?? Date.now)();
+	}
 	open(i: number) {
 		this.index = Math.max(0, Math.min(i, this.cells.length));
 		this.cautionOpen = false;
@@ -164,8 +168,8 @@ export class Capture {
 		this.update({ samples: [...this.draft.samples, s], entry: '' });
 	}
 	acknowledge(on = true) {
-		const key = this.caution.key;
-		this.acked = on ? [...new Set([...this.acked, key])] : this.acked.filter((k) => k !== key);
+		const ids: string[] = this.caution.list.map((l) => l.id);
+		this.acked = on ? [...new Set([...this.acked, ...ids])] : this.acked.filter((k) => !ids.includes(k));
 		this.cautionOpen = false;
 		this.keep();
 	}
@@ -200,7 +204,7 @@ export class Capture {
 				}
 			});
 			// A caution shown in full at a saved reading has been read: it folds from now on.
-			if (!this.caution.needsTap) this.acked = [...new Set([...this.acked, this.caution.key])];
+			if (!this.caution.needsTap) this.acked = [...new Set([...this.acked, ...this.caution.list.map((l) => l.id)])];
 			delete this.drafts[cell.key];
 			this.index = Math.min(this.index + 1, this.cells.length);
 			this.cautionOpen = false;
@@ -218,6 +222,7 @@ export class Capture {
 			? { ...m, zeroReading: ohms, leadReadAt: at }
 			: { ...m, leadResistance: ohms, leadReadAt: at };
 		await this.io.patchTest({ meter });
+		this.tick();
 		this.leadsForm = null;
 		// What was typed against the old lead reading is read again.
 		this.update({ entry: '', samples: [] });
