@@ -187,7 +187,7 @@ describe('quickPushBody', () => {
 			}),
 			{ numRuns: 3000 }
 		);
-	});
+	}, 30_000); // 3,000 generated cases: a wall-clock limit is not what this checks
 
 	it('leaves a __proto__ field name to zod, which drops it', () => {
 		const text = `{"deviceId":"d","ops":[{"opId":"${uuidv7()}","entity":"reading","entityId":"${uuidv7()}","kind":"create","baseVersion":0,"deviceTime":"2026-12-01T08:00:00Z","fields":{"__proto__":{"x":1},"note":"a"}}]}`;
@@ -238,7 +238,7 @@ describe('quickReadingCreate', () => {
 			}),
 			{ numRuns: 3000 }
 		);
-	});
+	}, 30_000); // 3,000 generated cases: a wall-clock limit is not what this checks
 
 	const plain = () => ({
 		testId: uuidv7(),
