@@ -195,18 +195,41 @@ export function pickSettled(
 	samples: readonly number[],
 	{ tolerance = 0.1, uncertaintyOf, mode: forced }: SettleOptions = {}
 ): SettledPick | null {
-	const median = settledValue(samples, 'median');
-	if (median === null) return null;
-	const enough = samples.filter((s) => !Number.isNaN(s)).length >= MIN_VALUES_TO_COMPARE;
-	const far = (s: number) => {
-		if (compareToReference(s, median, tolerance) === 0) return false;
-		if (!uncertaintyOf || !Number.isFinite(s) || !Number.isFinite(median)) return true;
-		return Math.abs(s - median) > uncertaintyOf(s) + uncertaintyOf(median);
-	};
-	const suspects = samples.flatMap((s, i) => (enough && !Number.isNaN(s) && far(s) ? [i] : []));
-	const kept = samples.filter((_, i) => !suspects.includes(i));
-	const basis = kept.some((s) => !Number.isNaN(s)) ? kept : samples;
-	const keptMedian = settledValue(basis, 'median') ?? median;
+	// Written as plain loops: the server runs this for every reading of a sync push.
+	const valid: number[] = [];
+	for (const s of samples) if (!Number.isNaN(s)) valid.push(s);
+	if (valid.length === 0) return null;
+	const sorted = valid.sort(ascending);
+	const median = middleOf(sorted);
+	const suspects: number[] = [];
+	if (sorted.length >= MIN_VALUES_TO_COMPARE) {
+		for (let i = 0; i < samples.length; i++) {
+			const s = samples[i];
+			if (Number.isNaN(s) || compareToReference(s, median, tolerance) === 0) continue;
+			const far =
+				!uncertaintyOf || !Number.isFinite(s) || !Number.isFinite(median)
+					? true
+					: Math.abs(s - median) > uncertaintyOf(s) + uncertaintyOf(median);
+			if (far) suspects.push(i);
+		}
+	}
+	let kept = sorted;
+	if (suspects.length) {
+		const rest: number[] = [];
+		for (let i = 0; i < samples.length; i++)
+			if (!Number.isNaN(samples[i]) && !suspects.includes(i)) rest.push(samples[i]);
+		if (rest.length) kept = rest.sort(ascending);
+	}
+	const keptMedian = kept === sorted ? median : middleOf(kept);
 	const mode: SettleMode = forced ?? (keptMedian < LOWEST_BELOW_OHM ? 'lowest' : 'median');
-	return { value: settledValue(basis, mode) ?? keptMedian, mode, suspects };
+	return { value: mode === 'lowest' ? kept[0] : keptMedian, mode, suspects };
+}
+
+const ascending = (a: number, b: number) => a - b;
+/** The median of values sorted ascending (not empty), as {@link medianOf} gives it. */
+function middleOf(sorted: readonly number[]): number {
+	const mid = sorted.length >> 1;
+	if (sorted.length % 2 === 1) return sorted[mid];
+	const [a, b] = [sorted[mid - 1], sorted[mid]];
+	return a === b ? a : (a + b) / 2;
 }
