@@ -103,7 +103,7 @@ describe('jobs, customers and vehicles at phone size', () => {
 		await page.getByTestId('vin-warning').waitFor();
 		await page.getByLabel('Plate').fill(`E2 ${run.slice(-5)}`);
 		await page.getByLabel('Make').fill('Tessaly');
-		await page.getByLabel('Model').fill('Meridian');
+		await page.getByLabel('Model').fill('Ondrava');
 		await page.getByLabel('Year').fill('2021');
 		await page.getByLabel('Odometer').fill('41 250');
 		await page.getByText('Hybrid or electric').click();
@@ -121,16 +121,16 @@ describe('jobs, customers and vehicles at phone size', () => {
 
 	it('opens a job on the vehicle, moves its status and records a fault code', async () => {
 		const { page } = phone;
-		await page.getByRole('link', { name: 'Open a job on this vehicle' }).click();
+		await page.getByRole('link', { name: 'Book in a job on this vehicle' }).click();
 		await page.waitForURL(/\/jobs\/new\?vehicle=/);
 		await page.getByTestId('hv-banner').waitFor();
-		await page.getByRole('button', { name: 'Open job' }).click();
+		await page.getByRole('button', { name: 'Book in the job' }).click();
 		await expect.poll(() => page.locator('#f-complaint-err').textContent()).toContain('complaint');
 		await page.getByLabel('Complaint').fill(COMPLAINT);
 		await page.getByLabel('Location').fill('Bay 2');
 		await expectPhoneFit(page);
 		await shot(page, 'office-6-job-new');
-		await page.getByRole('button', { name: 'Open job' }).click();
+		await page.getByRole('button', { name: 'Book in the job' }).click();
 		await page.waitForURL(/\/jobs\/[0-9a-f-]{36}$/);
 		jobUrl = page.url();
 		expect(await page.getByTestId('job-number').textContent()).toMatch(/Job \d+/);

@@ -44,14 +44,14 @@ describe('the spec library at phone size', () => {
 		await page.goto(`${base}/library`);
 		await page
 			.getByTestId('result-count')
-			.filter({ hasText: /component/ })
+			.filter({ hasText: /part/ })
 			.waitFor();
 		await page.getByTestId('library-cards').waitFor();
 		expect(await page.getByTestId('library-cards').textContent()).toContain('TB-IC-2041');
 		expect(await layoutProblems()).toEqual({ small: [], width: 390 });
 		await shot(page, 'library-phone');
 
-		await page.getByRole('link', { name: '+ New component' }).click();
+		await page.getByRole('link', { name: '+ New part' }).click();
 		await page.getByLabel('Part number').fill(PART);
 		await page.getByLabel('Kind').selectOption('coil_pack');
 		await page.getByLabel('Description').fill('Two-coil pack for the end-to-end test (invented)');
@@ -128,7 +128,7 @@ describe('the spec library at phone size', () => {
 		await card.waitFor();
 		// Only the searched part is left once the filtered page has arrived.
 		await expect.poll(() => page.getByTestId('library-cards').getByRole('link').count()).toBe(1);
-		expect(await page.getByTestId('result-count').textContent()).toContain('1 component');
+		expect(await page.getByTestId('result-count').textContent()).toContain('1 part');
 		expect(await card.textContent()).toContain('Approved v1');
 		await shot(page, 'library-technician-phone');
 

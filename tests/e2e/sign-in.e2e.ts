@@ -31,7 +31,7 @@ describe('sign-in at phone size', () => {
 			await expect.poll(() => page.getByTestId('who').textContent()).toBe(u.name);
 			expect(await page.getByTestId('role').textContent()).toBe(ROLE_WORDS[u.role]);
 			await page.getByTestId('sync-badge').waitFor();
-			await page.locator('[data-testid=job-list], p:has-text("No open jobs")').first().waitFor();
+			await page.locator('[data-testid=job-list], p:has-text("No jobs assigned")').first().waitFor();
 			// Other end-to-end files may add jobs; the seeded ones must be there.
 			const text = await page.getByTestId('job-list').textContent();
 			if (u.role === 'technician') expect(text).toContain('Job 1001');

@@ -57,7 +57,7 @@ describe('POST /api/jobs', () => {
 		const owner = await customers.create(a.users.lead.actor, { name: 'Owner Of Car' });
 		const car = await vehicles.create(a.users.lead.actor, {
 			make: 'Corvane',
-			model: 'Sable',
+			model: 'Brisel',
 			vin: '1M8GDM9AXKP042788',
 			customerId: owner.id
 		});

@@ -105,7 +105,7 @@ describe('components', () => {
 		).json('POST', '/api/components', {
 			partNumber: '',
 			kind: 'ignition_coil',
-			fitment: [{ make: 'Corvane', model: 'Sable', yearFrom: 2020, yearTo: 2017 }]
+			fitment: [{ make: 'Corvane', model: 'Brisel', yearFrom: 2020, yearTo: 2017 }]
 		});
 		expect(r.status).toBe(400);
 		const e = (await body(r)).error;
@@ -162,7 +162,7 @@ describe('components', () => {
 
 	it('keeps the fields a patch does not send (no defaults fill in)', async () => {
 		const c = await newComponent(a, {
-			fitment: [{ make: 'Corvane', model: 'Sable' }],
+			fitment: [{ make: 'Corvane', model: 'Brisel' }],
 			cautions: ['fuel']
 		});
 		const r = await (
@@ -172,7 +172,7 @@ describe('components', () => {
 			description: 'Only this'
 		});
 		expect((await body(r)).component).toMatchObject({
-			fitment: [{ make: 'Corvane', model: 'Sable' }],
+			fitment: [{ make: 'Corvane', model: 'Brisel' }],
 			cautions: ['fuel']
 		});
 	});
@@ -232,9 +232,9 @@ describe('the library list', () => {
 		const add = async (partNumber: string, kind: string, fitment: unknown[] = []) =>
 			(ids[partNumber] = (await newComponent(w, { partNumber, kind, fitment })).id);
 		await add('LL-100', 'ignition_coil', [
-			{ make: 'Corvane', model: 'Sable', yearFrom: 2017, yearTo: 2022, engineCode: 'CV16T' }
+			{ make: 'Corvane', model: 'Brisel', yearFrom: 2017, yearTo: 2022, engineCode: 'CV16T' }
 		]);
-		await add('LL-200', 'coil_pack', [{ make: 'Tessaly', model: 'Meridian', yearFrom: 2020 }]);
+		await add('LL-200', 'coil_pack', [{ make: 'Tessaly', model: 'Ondrava', yearFrom: 2020 }]);
 		await add('LL-300', 'relay');
 		await add('LL-400', 'ignition_coil', [
 			{ make: 'Corvane', model: 'Pica', yearFrom: 2012, yearTo: 2016 }
@@ -266,7 +266,7 @@ describe('the library list', () => {
 	it('searches the part number, the vehicle’s make and model, the engine code and a year fitted', async () => {
 		expect(parts(await list('q=ll-3'))).toEqual(['LL-300']);
 		expect(parts(await list('q=corvane'))).toEqual(['LL-100', 'LL-400']);
-		expect(parts(await list('q=Corvane%20Sable'))).toEqual(['LL-100']);
+		expect(parts(await list('q=Corvane%20Brisel'))).toEqual(['LL-100']);
 		expect(parts(await list('q=cv16t'))).toEqual(['LL-100']);
 		expect(parts(await list('q=corvane%202015'))).toEqual(['LL-400']);
 		expect(parts(await list('q=make'))).toEqual([]); // JSON keys are not searched

@@ -32,7 +32,8 @@ async function signedIn(email: string) {
  */
 const CHECKS = [
 	{ key: 'primary', label: 'Primary winding', quantity: 'resistance', from: '1', to: '2', condition: 'key_off', unit: 'Ω', openOk: false,
-		bands: [{ fromC: null, toC: 50, min: 0.36, max: 0.55 }, { fromC: 50, toC: 100, min: 0.45, max: 0.65 }] }
+		bands: [{ fromC: null, toC: 50, min: 0.36, max: 0.55 }, { fromC: 50, toC: 100, min: 0.45, max: 0.65 }] },
+	{ key: 'boot', label: 'HT boot', quantity: 'visual', from: null, to: null, condition: 'key_off', unit: null, openOk: false, bands: [] }
 ];
 
 beforeAll(async () => {
@@ -180,6 +181,46 @@ describe('push', () => {
 		expect(rows.map((r) => r.mismatch)).toEqual([1, 0]);
 		const [m] = await db().query<{ n: number }>('SELECT COUNT(*) AS n FROM reading_mismatches WHERE reading_id = ?', { replacements: [r1.entityId], type: QueryTypes.SELECT });
 		expect(Number(m.n)).toBe(1);
+	});
+
+	it('recomputes with the phone’s rules: a bad zero, over range, the lead reading’s error, a visual finding', async () => {
+		// ±(0.5 % + 2 counts) at 0.01 Ω (the meter accuracy form), leads 0.20 Ω read on it.
+		const meter = {
+			ranges: [
+				{ label: '20 Ω', resolution: 0.01, pctOfReading: 0.5, counts: 2, maxReading: 19.99 },
+				{ label: '20 kΩ', resolution: 10, pctOfReading: 0.8, counts: 1, maxReading: 19990 }
+			],
+			leadResistance: 0.2,
+			relativeMode: false,
+			leadReadAt: '2026-12-02T08:00:00.000Z'
+		};
+		const t = newTest({ meter });
+		const at = (value: number | 'OL', rangeLabel: string, deviceResult: object) =>
+			create('reading', { testId: t.entityId, checkKey: 'primary', samples: [{ value, unit: 'Ω' }], rangeLabel, deviceResult });
+		const badZero = at(0.15, '20 Ω', { value: 0, verdict: 'bad_zero' });
+		const over = at('OL', '20 Ω', { value: null, verdict: 'over_range', ol: true });
+		const open = at('OL', '20 kΩ', { value: null, verdict: 'high', ol: true });
+		// 0.59 − 0.20 = 0.39 Ω ± (0.02295 + 0.021): straddles the 0.36 Ω minimum. With the ± of
+		// 0.39 Ω alone (0.02195) it would have passed as OK.
+		const close = at(0.59, '20 Ω', { value: 0.39, verdict: 'borderline' });
+		const look = create('reading', { testId: t.entityId, checkKey: 'boot', samples: [], visual: { ok: false, note: 'Tracking marks on the boot' }, deviceResult: { value: null, verdict: 'not_ok' } });
+		const res = await push(tech, 'phone-a', [t, badZero, over, open, close, look]);
+		expect(res.map((r) => r.status)).toEqual(Array(6).fill('applied'));
+		const rows = await db().query<{ server_result: string; mismatch: number; visual: string | null }>(
+			'SELECT server_result, mismatch, visual FROM readings WHERE test_id = ? ORDER BY seq',
+			{ replacements: [t.entityId], type: QueryTypes.SELECT }
+		);
+		expect(rows.map((r) => JSON.parse(r.server_result).verdict)).toEqual(['bad_zero', 'over_range', 'high', 'borderline', 'not_ok']);
+		expect(JSON.parse(rows[3].server_result).u).toBeCloseTo(0.04395, 12);
+		expect(rows.map((r) => r.mismatch)).toEqual([0, 0, 0, 0, 0]); // the phone and the server agree
+		expect(JSON.parse(rows[4].visual!)).toEqual({ ok: false, note: 'Tracking marks on the boot' });
+	});
+
+	it('refuses a reading with neither samples nor a visual finding', async () => {
+		const t = newTest();
+		const empty = create('reading', { testId: t.entityId, checkKey: 'primary', samples: [] });
+		const res = await push(tech, 'phone-a', [t, empty]);
+		expect(res[1]).toMatchObject({ status: 'rejected', reason: 'invalid' });
 	});
 
 	it('rejects a create replayed under another op id with different fields as id_conflict', async () => {

@@ -37,7 +37,7 @@ beforeAll(async () => {
 	vehicleOfB = (
 		await vehicles.create(b.users.lead.actor, {
 			make: 'Tessaly',
-			model: 'Meridian',
+			model: 'Ondrava',
 			vin: WORKED_VIN
 		})
 	).id as string;
@@ -45,7 +45,7 @@ beforeAll(async () => {
 
 const car = (extra: Record<string, unknown> = {}) => ({
 	make: 'Corvane',
-	model: 'Sable',
+	model: 'Brisel',
 	year: 2019,
 	plate: 'TB24 KQL',
 	odometer: 84210,
@@ -210,7 +210,7 @@ describe('GET /api/vehicles', () => {
 	});
 
 	it('never lists another workshop’s vehicles', async () => {
-		const body = await (await as.lead.get('/api/vehicles?q=Meridian&pageSize=100')).json();
+		const body = await (await as.lead.get('/api/vehicles?q=Ondrava&pageSize=100')).json();
 		expect(body.items.map((v: { id: string }) => v.id)).not.toContain(vehicleOfB);
 	});
 });

@@ -19,13 +19,19 @@ import { countOutbox, peekOutbox } from './outbox';
 import { PUSH_BATCH, type Change, type PushResult } from '../sync/protocol';
 
 export type SyncState = 'idle' | 'syncing' | 'offline' | 'signed_out' | 'error';
+/**
+ * Why a sync stopped, as a code (the screens say it in words, see `sync-words.ts`): no
+ * connection, the server busy or failing (5xx, 429), an op the server could not store, the
+ * pull's cursor refused twice, signed out, or something unexpected.
+ */
+export type SyncProblem = 'no_connection' | 'server_busy' | 'server_error' | 'store_failed' | 'pull_refused' | 'signed_out' | 'unexpected';
 export type SyncReport = {
 	state: SyncState;
 	pushed: number;
 	pulled: number;
 	waiting: number;
 	issues: number;
-	error?: string;
+	error?: SyncProblem;
 	/** The server asked to wait this long before trying again (a 429's Retry-After). */
 	retryAfterMs?: number;
 };
@@ -33,14 +39,20 @@ type Fetch = (input: string, init?: RequestInit) => Promise<Response>;
 
 const CURSOR = 'cursor';
 
-class Transient extends Error {
-	constructor(
-		message: string,
-		readonly retryAfterMs?: number
-	) {
-		super(message);
+class Problem extends Error {
+	constructor(readonly code: SyncProblem) {
+		super(code);
 	}
 }
+class Transient extends Problem {
+	constructor(
+		code: SyncProblem,
+		readonly retryAfterMs?: number
+	) {
+		super(code);
+	}
+}
+class SignedOut extends Problem {}
 
 /** A Retry-After header (seconds, or an HTTP date) in milliseconds from `now`; undefined when absent or unreadable. */
 export function retryAfterMs(header: string | null, now = Date.now()): number | undefined {
@@ -50,7 +62,6 @@ export function retryAfterMs(header: string | null, now = Date.now()): number | 
 	const at = Date.parse(value);
 	return Number.isNaN(at) ? undefined : Math.max(0, at - now);
 }
-class SignedOut extends Error {}
 
 export class SyncEngine {
 	batch = PUSH_BATCH;
@@ -74,7 +85,7 @@ export class SyncEngine {
 			const state: SyncState = e instanceof SignedOut ? 'signed_out' : e instanceof Transient ? 'offline' : 'error';
 			if (state === 'error') console.error('sync failed', e);
 			const retryAfterMs = e instanceof Transient ? e.retryAfterMs : undefined;
-			return { state, pushed, pulled, ...(await this.counts()), error: (e as Error).message, ...(retryAfterMs !== undefined ? { retryAfterMs } : {}) };
+			return { state, pushed, pulled, ...(await this.counts()), error: e instanceof Problem ? e.code : 'unexpected', ...(retryAfterMs !== undefined ? { retryAfterMs } : {}) };
 		}
 	}
 
@@ -87,11 +98,11 @@ export class SyncEngine {
 		try {
 			r = await this.fetcher(url, { credentials: 'same-origin', ...init });
 		} catch {
-			throw new Transient('No connection');
+			throw new Transient('no_connection');
 		}
-		if (r.status === 401) throw new SignedOut('Signed out');
-		if (r.status === 429) throw new Transient('The server asked to wait', retryAfterMs(r.headers.get('retry-after')));
-		if (r.status >= 500) throw new Transient(`Server answered ${r.status}`);
+		if (r.status === 401) throw new SignedOut('signed_out');
+		if (r.status === 429) throw new Transient('server_busy', retryAfterMs(r.headers.get('retry-after')));
+		if (r.status >= 500) throw new Transient(r.status === 503 ? 'server_busy' : 'server_error');
 		return r;
 	}
 
@@ -100,7 +111,7 @@ export class SyncEngine {
 		try {
 			return (await r.json()) as T;
 		} catch {
-			throw new Transient('The answer was cut off');
+			throw new Transient('no_connection');
 		}
 	}
 
@@ -128,11 +139,11 @@ export class SyncEngine {
 				await this.settleEntry(bad, { opId: bad.op.opId, status: 'rejected', reason: 'invalid', message: body?.error?.message });
 				continue;
 			}
-			if (!r.ok) throw new Transient(`Server answered ${r.status}`);
+			if (!r.ok) throw new Transient('server_error');
 			const { results } = await this.body<{ results: PushResult[] }>(r);
 			for (let i = 0; i < results.length; i++) {
 				const result = results[i];
-				if (result.status === 'rejected' && result.reason === 'server_error') throw new Transient('The server could not store an op');
+				if (result.status === 'rejected' && result.reason === 'server_error') throw new Transient('store_failed');
 				await this.settleEntry(entries[i], result);
 				sent++;
 			}
@@ -186,7 +197,7 @@ export class SyncEngine {
 			if (r.status === 400) {
 				// The feed does not know this cursor (e.g. another database): start again.
 				await setMeta(this.db, CURSOR, 0);
-				if (cursor === 0) throw new Error('The server refused the pull');
+				if (cursor === 0) throw new Problem('pull_refused');
 				continue;
 			}
 			const body = await this.body<{ changes: Change[]; cursor: number; more: boolean }>(r);

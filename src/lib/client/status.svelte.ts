@@ -1,12 +1,12 @@
 /** What the sync badge and the "waiting to send" screen show; updated by the runner. */
-import type { SyncState } from './engine';
+import type { SyncProblem, SyncState } from './engine';
 
 class SyncStatus {
 	state = $state<SyncState>('idle');
 	waiting = $state(0);
 	issues = $state(0);
 	lastSyncAt = $state<string | null>(null);
-	lastError = $state<string | null>(null);
+	lastError = $state<SyncProblem | null>(null);
 	online = $state(true);
 	/** Whether the browser promised to keep our storage (null: not asked yet). */
 	persisted = $state<boolean | null>(null);

@@ -8,10 +8,16 @@ export type OutlierDirection = 'low' | 'high' | 'both';
 
 /** Options for {@link findOutliers}. */
 export interface OutlierOptions {
-	/** Allowed deviation as a fraction of the median of the other values (0.1 = 10 %), ≥ 0. */
+	/** Allowed deviation as a fraction of the reference median (0.1 = 10 %), ≥ 0. */
 	tolerance: number;
 	/** Report only values below (`low`), above (`high`) or on either side (`both`). */
 	direction: OutlierDirection;
+	/**
+	 * The ± of each position's value (same unit, by key). When given, a difference smaller
+	 * than the value's ± plus the reference's ± is never flagged: the meter cannot tell the two
+	 * apart. A missing key counts as 0.
+	 */
+	uncertainty?: Readonly<Record<string, number>>;
 }
 
 /** Fewest values that make a comparison meaningful: with two, neither is "the odd one". */
@@ -50,30 +56,49 @@ export function compareToReference(
 	return 0;
 }
 
+/** The median of some positions' values, and the ± of the value(s) it is made of. */
+function referenceOf(entries: readonly [string, number][], u: Readonly<Record<string, number>>) {
+	const sorted = [...entries].sort((a, b) => a[1] - b[1]);
+	const mid = Math.floor(sorted.length / 2);
+	const middle = sorted.length % 2 === 1 ? [sorted[mid]] : [sorted[mid - 1], sorted[mid]];
+	return {
+		value: medianOf(sorted.map(([, v]) => v)) ?? NaN,
+		u: Math.max(...middle.map(([k]) => u[k] ?? 0))
+	};
+}
+
 /**
- * Find the positions whose value deviates from the median of the *other* positions by more
- * than `tolerance` (a fraction of that median), in the requested direction.
+ * Find the positions whose value deviates from the reference median by more than
+ * `tolerance` (a fraction of that median), in the requested direction. The reference is the
+ * median of all the values when there are three (the median of the other two would be their
+ * mean, which one odd value drags, so the good ones would look off too), and the median of
+ * the *other* positions from four on (so the odd one does not pull its own reference).
+ * With `uncertainty`, a difference no larger than the combined ± (the value's plus the
+ * reference's, the worst-case sum) is never flagged; an OL (`Infinity`) value is compared
+ * without it.
  *
  * Values are in any one unit (all the same); `NaN` entries are skipped and not counted.
  * Nothing is flagged when fewer than {@link MIN_VALUES_TO_COMPARE} values remain. A median
- * of zero flags every non-zero value. With exactly three values the median of the other two
- * is their mean, so one outlier can make its neighbours look off too (direction `both`).
+ * of zero flags every non-zero value (beyond the ±).
  *
  * @returns the flagged keys, in the object's key order.
  * @throws RangeError for a negative or NaN tolerance.
  */
 export function findOutliers(
 	valuesByPosition: Readonly<Record<string, number>>,
-	{ tolerance, direction }: OutlierOptions
+	{ tolerance, direction, uncertainty = {} }: OutlierOptions
 ): string[] {
 	if (!(tolerance >= 0)) throw new RangeError(`Tolerance must be ≥ 0, got ${tolerance}`);
 	const entries = Object.entries(valuesByPosition).filter(([, v]) => !Number.isNaN(v));
 	if (entries.length < MIN_VALUES_TO_COMPARE) return [];
+	const ofAll = entries.length === MIN_VALUES_TO_COMPARE ? referenceOf(entries, uncertainty) : null;
 	return entries
 		.filter(([key, value]) => {
-			const others = entries.filter(([k]) => k !== key).map(([, v]) => v);
-			const side = compareToReference(value, medianOf(others) ?? value, tolerance);
+			const ref = ofAll ?? referenceOf(entries.filter(([k]) => k !== key), uncertainty);
+			const side = compareToReference(value, ref.value, tolerance);
 			if (side === 0) return false;
+			const finite = Number.isFinite(value) && Number.isFinite(ref.value);
+			if (finite && Math.abs(value - ref.value) <= (uncertainty[key] ?? 0) + ref.u) return false;
 			return direction === 'both' || (direction === 'low') === side < 0;
 		})
 		.map(([key]) => key);

@@ -97,3 +97,23 @@ export function validateVin(vin: string): VinValidation {
 	}
 	return { valid: errors.length === 0, errors, warnings };
 }
+
+/** Position (1-based) of the model-year character. */
+export const MODEL_YEAR_POSITION = 10;
+
+/**
+ * The model-year codes of 49 CFR 565.15(a), Table VI, in order from 1980 (A) to 2009 (9);
+ * the cycle repeats every 30 years (2010 is A again). I, O, Q, U, Z and 0 are never used.
+ */
+export const MODEL_YEAR_CODES = 'ABCDEFGHJKLMNPRSTVWXY123456789';
+
+/**
+ * The character a VIN carries in position 10 for a model year (49 CFR 565.15(a)), e.g.
+ * 2019 → `K`, 2022 → `N`.
+ *
+ * @throws RangeError for a year that is not a whole number from 1980 on.
+ */
+export function modelYearCode(year: number): string {
+	if (!Number.isInteger(year) || year < 1980) throw new RangeError(`No model-year code for ${year}`);
+	return MODEL_YEAR_CODES[(year - 1980) % MODEL_YEAR_CODES.length];
+}

@@ -7,7 +7,8 @@
  *   coil       part_number position cylinders                           (one per coil of a pack)
  *   sheet      part_number sheet_version state source_document source_section source_page
  *   check      part_number sheet_version check_key check_label quantity terminal_from
- *              terminal_to condition range_hint unit open_ok
+ *              terminal_to condition range_hint unit open_ok position
+ *              (position: the pack's coil the check belongs to; empty for every coil)
  *   limits     part_number sheet_version check_key from_c to_c min max  (one per band)
  *
  * Cells a record does not use stay empty. `min`/`max` are in the check's `unit`; `from_c`
@@ -78,7 +79,8 @@ export const RECORD_COLUMNS = {
 		'condition',
 		'range_hint',
 		'unit',
-		'open_ok'
+		'open_ok',
+		'position'
 	],
 	limits: ['part_number', 'sheet_version', 'check_key', 'from_c', 'to_c', 'min', 'max']
 } as const satisfies Record<string, readonly CsvColumn[]>;
@@ -164,7 +166,8 @@ export function sheetLines(partNumber: string, s: LibrarySheet, decimalComma = f
 				condition: c.condition,
 				range_hint: text(c.rangeHint),
 				unit: text(c.unit),
-				open_ok: c.openOk ? 'yes' : 'no'
+				open_ok: c.openOk ? 'yes' : 'no',
+				position: text(c.coil)
 			})
 		);
 		for (const b of c.bands)
@@ -268,6 +271,7 @@ const CHECK_COLUMNS: Record<string, CsvColumn> = {
 	rangeHint: 'range_hint',
 	unit: 'unit',
 	openOk: 'open_ok',
+	coil: 'position',
 	bands: 'check_key'
 };
 const BAND_COLUMNS: Record<string, CsvColumn> = {
@@ -495,6 +499,7 @@ function buildSheet(
 			rangeHint: row.get('range_hint'),
 			unit: blankToNull(unit),
 			openOk: ['yes', 'true', '1'].includes(open),
+			coil: row.get('position'),
 			bands: bandRows[i].map((b) => {
 				const min = decimal(b, 'min');
 				const max = decimal(b, 'max');

@@ -56,16 +56,24 @@ export const COLD_HOT_SPLIT_C = 50;
 /** The usual top of a hot spec, °C (common practice). */
 export const HOT_TOP_C = 100;
 
+/** A band's temperatures in words: "below 50 °C", "50–100 °C", "100 °C and above". */
+export function temperatureRangeText(b: { fromC: number | null; toC: number | null }): string {
+	if (b.fromC === null && b.toC === null) return 'any temperature';
+	if (b.fromC === null) return `below ${b.toC} °C`;
+	if (b.toC === null) return `${b.fromC} °C and above`;
+	return `${b.fromC}–${b.toC} °C`;
+}
+
+/** A band's short name: "Cold spec", "Hot spec", or its temperatures. */
+export function bandShortName(b: { fromC: number | null; toC: number | null }): string {
+	if (b.fromC === null && b.toC !== null && b.toC <= COLD_HOT_SPLIT_C) return 'Cold spec';
+	if (b.fromC !== null && b.fromC >= COLD_HOT_SPLIT_C) return 'Hot spec';
+	return b.fromC === null && b.toC === null ? 'Spec' : `Spec ${temperatureRangeText(b)}`;
+}
+
 /** A band's name in the product's words: cold spec, hot spec, or its temperature range. */
 export function bandName(b: { fromC: number | null; toC: number | null }): string {
-	const range =
-		b.fromC === null && b.toC === null
-			? 'any temperature'
-			: b.fromC === null
-				? `below ${b.toC} °C`
-				: b.toC === null
-					? `${b.fromC} °C and above`
-					: `${b.fromC} to ${b.toC} °C`;
+	const range = temperatureRangeText(b);
 	if (b.fromC === null && b.toC !== null && b.toC <= COLD_HOT_SPLIT_C)
 		return `Cold spec · ${range}`;
 	if (b.fromC !== null && b.fromC >= COLD_HOT_SPLIT_C) return `Hot spec · ${range}`;

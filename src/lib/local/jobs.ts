@@ -18,7 +18,7 @@ export type JobView = {
 	codesBefore: FaultCode[];
 	codesAfter: FaultCode[];
 	customer: { id: string; name: string; phone: string | null } | null;
-	vehicle: { id: string; make: string; model: string; year: number | null; plate: string | null; vin: string | null; hybrid: boolean; engineCode: string | null } | null;
+	vehicle: { id: string; make: string; model: string; year: number | null; plate: string | null; vin: string | null; hybrid: boolean; engineCode: string | null; cylinders: number | null } | null;
 };
 
 /**
@@ -55,7 +55,8 @@ async function view(db: LocalDb, r: LocalRecord): Promise<JobView> {
 					plate: (v.data.plate as string) ?? null,
 					vin: (v.data.vin as string) ?? null,
 					hybrid: Boolean(v.data.hybrid),
-					engineCode: (v.data.engineCode as string) ?? null
+					engineCode: (v.data.engineCode as string) ?? null,
+					cylinders: (v.data.cylinders as number) ?? null
 				}
 			: null
 	};

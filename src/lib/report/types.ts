@@ -37,7 +37,7 @@ export type ReadingFacts = {
 	checkKey: string;
 	/** Settled value in base units; null when none; Infinity for an open circuit (OL). */
 	value: number | null;
-	verdict: 'within' | 'borderline' | 'low' | 'high' | 'depends' | 'no_spec';
+	verdict: 'within' | 'borderline' | 'low' | 'high' | 'depends' | 'no_spec' | 'bad_zero' | 'over_range' | 'not_ok';
 	/** The bands it was judged against, with each band's verdict and margin. */
 	bands: { fromC: number | null; toC: number | null; verdict: string; marginPct: number | null; nearest: 'min' | 'max' | null }[];
 };

@@ -66,11 +66,14 @@ const RESULT_WORD: Record<ReadingFacts['verdict'], string> = {
 	high: 'over spec',
 	borderline: 'can’t tell — re-check on a lower range',
 	depends: 'can’t tell — depends on the temperature',
-	no_spec: 'no maker’s figure'
+	no_spec: 'no maker’s figure',
+	bad_zero: 'can’t tell — re-zero the leads',
+	over_range: 'can’t tell — over range',
+	not_ok: 'not OK (visual check)'
 };
 
 const outcomeOf = (r: ReadingFacts): Outcome =>
-	r.verdict === 'within' ? 'ok' : r.verdict === 'low' || r.verdict === 'high' ? 'out' : 'unclear';
+	r.verdict === 'within' ? 'ok' : r.verdict === 'low' || r.verdict === 'high' || r.verdict === 'not_ok' ? 'out' : 'unclear';
 const RANK: Record<Outcome, number> = { ok: 0, unclear: 1, out: 2 };
 
 const list = (items: string[]) =>
@@ -114,6 +117,12 @@ export function findingSentence(
 			return `${subject} measured ${well}below its limit${which}: it should be replaced.`;
 		case 'borderline':
 			return `${subject} measured too close to its limit to be sure${which}: it needs to be checked again.`;
+		case 'not_ok':
+			return `${subject} failed its visual check${which}: it should be replaced.`;
+		case 'bad_zero':
+			return `${subject} could not be judged${which}: the meter's leads need zeroing again, and it needs to be checked again.`;
+		case 'over_range':
+			return `${subject} read above the meter's range${which}: it needs to be checked again on a higher range.`;
 		case 'depends':
 			return `${subject} gave a reading whose result depends on the engine temperature${which}, which was not certain: it needs to be checked again at a known temperature.`;
 		default:

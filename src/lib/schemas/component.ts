@@ -6,6 +6,7 @@
  */
 import { z } from 'zod';
 import { normalizeUnit } from '../domain/units';
+import { temperatureRangeText } from '../library/labels';
 import {
 	optionalText,
 	pageParam,
@@ -160,15 +161,6 @@ export const band = z
 	});
 export type Band = z.output<typeof band>;
 
-const describeRange = (b: Band) =>
-	b.fromC === null && b.toC === null
-		? 'any temperature'
-		: b.fromC === null
-			? `below ${b.toC} °C`
-			: b.toC === null
-				? `${b.fromC} °C and above`
-				: `${b.fromC} to ${b.toC} °C`;
-
 /** Index pairs [i, j] (j after i in temperature) of bands whose ranges overlap. */
 export function overlappingBands(bands: readonly Band[]): [number, number][] {
 	const lo = (b: Band) => b.fromC ?? -Infinity;
@@ -204,7 +196,9 @@ export const check = z
 		rangeHint: optionalText(30),
 		unit: unitText,
 		openOk: z.boolean().default(false),
-		bands: z.array(band).max(6, 'At most 6 temperature bands').default([])
+		bands: z.array(band).max(6, 'At most 6 temperature bands').default([]),
+		/** A pack's coil (its position name) this check belongs to; null: every coil. */
+		coil: optionalText(10)
 	})
 	.superRefine((c, ctx) => {
 		const fits = UNITS_BY_QUANTITY[c.quantity];
@@ -253,7 +247,7 @@ export const check = z
 			ctx.addIssue({
 				code: 'custom',
 				path: ['bands', j, 'fromC'],
-				message: `Overlaps the band ${describeRange(c.bands[i])}`
+				message: `Overlaps the band ${temperatureRangeText(c.bands[i])}`
 			});
 	});
 export type Check = z.output<typeof check>;
@@ -273,7 +267,7 @@ const checks = z
 		const seen = new Set<string>();
 		list.forEach((c, i) => {
 			if (seen.has(c.key))
-				ctx.addIssue({ code: 'custom', path: [i, 'key'], message: 'Another check uses this key' });
+				ctx.addIssue({ code: 'custom', path: [i, 'key'], message: 'Another check uses this short name' });
 			seen.add(c.key);
 		});
 	});

@@ -27,7 +27,7 @@ export type JobStatus = (typeof JOB_STATUSES)[number];
 
 /** The words shown for each status. */
 export const STATUS_LABELS: Record<JobStatus, string> = {
-	open: 'Open',
+	open: 'Booked in',
 	testing: 'Testing',
 	awaiting_authorisation: 'Awaiting authorisation',
 	awaiting_parts: 'Awaiting parts',

@@ -8,20 +8,32 @@ export const sample = z.object({
 	unit: z.string().min(1).max(4)
 });
 
-export const readingCreate = z.object({
-	testId: uuidRef,
-	checkKey: z.string().regex(/^[a-z0-9_]{1,40}$/),
-	position: optionalText(20),
-	samples: z.array(sample).min(1, 'At least one sample').max(20),
-	/** Which range of the test's meter the samples were read on. */
-	rangeLabel: z.string().max(30).nullable().optional(),
-	/** What the phone showed; the server recomputes and keeps both. */
-	deviceResult: z
-		.object({ value: z.number().nullable(), verdict: z.string().max(20) })
-		.passthrough()
-		.nullable()
-		.optional()
-});
+/** A visual check's finding: OK or not, with a note of what was seen. */
+export const visualFinding = z.object({ ok: z.boolean(), note: optionalText(500) });
+
+/** A reading: samples of a measured check, or the finding of a visual check (no samples). */
+export const readingCreate = z
+	.object({
+		testId: uuidRef,
+		checkKey: z.string().regex(/^[a-z0-9_]{1,40}$/),
+		position: optionalText(20),
+		samples: z.array(sample).max(20),
+		visual: visualFinding.nullable().optional(),
+		/** Which range of the test's meter the samples were read on. */
+		rangeLabel: z.string().max(30).nullable().optional(),
+		/** What the phone showed; the server recomputes and keeps both. */
+		deviceResult: z
+			.object({ value: z.number().nullable(), verdict: z.string().max(20) })
+			.passthrough()
+			.nullable()
+			.optional()
+	})
+	.superRefine((r, ctx) => {
+		if (r.visual == null && r.samples.length === 0)
+			ctx.addIssue({ code: 'custom', path: ['samples'], message: 'At least one sample' });
+		if (r.visual != null && r.samples.length > 0)
+			ctx.addIssue({ code: 'custom', path: ['samples'], message: 'A visual check has no samples' });
+	});
 
 export const sparkTestCreate = z.object({
 	jobId: uuidRef,

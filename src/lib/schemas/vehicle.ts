@@ -50,6 +50,13 @@ export const vehicleFields = z.object({
 	model: requiredText(60, 'Enter the model'),
 	year: year.nullable().optional(),
 	engineCode: optionalText(30),
+	cylinders: z
+		.number({ error: 'Number of cylinders, like 4' })
+		.int('Number of cylinders, like 4')
+		.min(1, 'At least 1 cylinder')
+		.max(16, 'At most 16 cylinders')
+		.nullable()
+		.optional(),
 	odometer: z
 		.number({ error: 'Whole kilometres or miles' })
 		.int('Whole kilometres or miles')
@@ -108,6 +115,7 @@ export function readVehicleForm(fd: FormData) {
 		model: formText(fd, 'model'),
 		year: formNumber(fd, 'year'),
 		engineCode: formText(fd, 'engineCode'),
+		cylinders: formNumber(fd, 'cylinders'),
 		odometer: formNumber(fd, 'odometer'),
 		odometerUnit: formText(fd, 'odometerUnit') || 'km',
 		hybrid: formBool(fd, 'hybrid')

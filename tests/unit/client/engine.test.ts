@@ -27,6 +27,16 @@ async function dbWithOps(n: number) {
 }
 
 describe('the sync client', () => {
+	it.each([
+		['no connection', () => Promise.reject(new TypeError('Failed to fetch')), 'no_connection'],
+		['a 503', () => json(503, {}), 'server_busy'],
+		['a 500', () => json(500, {}), 'server_error']
+	] as const)('says why it stopped as a code, never the server’s text: %s', async (_name, answer, code) => {
+		const db = await dbWithOps(1);
+		const engine = new SyncEngine(db, 'dev-1', fakeServer(answer as Handler).fetcher);
+		expect(await engine.syncOnce()).toMatchObject({ state: 'offline', error: code });
+	});
+
 	it('sends the outbox in order and empties it', async () => {
 		const db = await dbWithOps(5);
 		const sent = (await listOutbox(db)).map((e) => e.op.opId);

@@ -110,6 +110,36 @@ describe('findOutliers', () => {
 		expect(findOutliers(values, { tolerance: 0.1, direction: 'both' })).toEqual(['4']);
 	});
 
+	it('compares three values with the median of all: 0.50 / 0.50 / 0.80 flags only 0.80', () => {
+		// With the median of the others, each 0.50 would meet (0.50 + 0.80) / 2 = 0.65 and be
+		// 23 % off, so all three were flagged.
+		expect(findOutliers({ a: 0.5, b: 0.5, c: 0.8 }, { tolerance: 0.1, direction: 'both' })).toEqual(['c']);
+	});
+
+	it('finds a low one of three against the median of all: 0.30 / 0.45 / 0.46', () => {
+		expect(findOutliers({ 1: 0.3, 2: 0.45, 3: 0.46 }, { tolerance: 0.1, direction: 'both' })).toEqual(['1']);
+	});
+
+	it('never flags a difference smaller than the two readings’ combined ±', () => {
+		// 0.10 / 0.10 / 0.13 Ω on a 0.1 Ω-count range at ±(0.5 % + 2): 0.13 is 30 % off but only
+		// 0.03 Ω away, well inside 0.2007 + 0.2005 Ω (meter accuracy form; worst-case sum).
+		const values = { a: 0.1, b: 0.1, c: 0.13 };
+		const uncertainty = { a: 0.2005, b: 0.2005, c: 0.20065 };
+		expect(findOutliers(values, { tolerance: 0.1, direction: 'both', uncertainty })).toEqual([]);
+		expect(findOutliers(values, { tolerance: 0.1, direction: 'both' })).toEqual(['c']);
+	});
+
+	it('flags beyond the combined ± when the difference is larger: 0.75 among 0.42–0.44 with ±0.022', () => {
+		const values = { 1: 0.42, 2: 0.43, 3: 0.75, 4: 0.44 };
+		const uncertainty = { 1: 0.0221, 2: 0.0222, 3: 0.0238, 4: 0.0222 };
+		expect(findOutliers(values, { tolerance: 0.1, direction: 'both', uncertainty })).toEqual(['3']);
+	});
+
+	it('compares an OL position without the ±', () => {
+		const uncertainty = { '1': 108, '2': 107, '3': 109, '4': 0 };
+		expect(findOutliers({ ...SECONDARIES, '4': Infinity }, { tolerance: 0.1, direction: 'both', uncertainty })).toEqual(['4']);
+	});
+
 	it.each([[-0.1], [NaN]])('throws a RangeError for a tolerance of %d', (tolerance) => {
 		expect(() => findOutliers(SECONDARIES, { tolerance, direction: 'both' })).toThrow(RangeError);
 	});

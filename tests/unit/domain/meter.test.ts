@@ -2,8 +2,10 @@ import { describe, it, expect } from 'vitest';
 import fc from 'fast-check';
 import {
 	canResolve,
+	compensatedUncertainty,
 	compensateLeads,
 	isBadZero,
+	isHighestRange,
 	pickSettled,
 	resolvingRatio,
 	settledValue,
@@ -49,6 +51,64 @@ describe('isBadZero', () => {
 		[0.5, 0.12, false]
 	])('says %s for a reading of %d Ω with %d Ω leads', (reading, leads, expected) => {
 		expect(isBadZero(reading, leads)).toBe(expected);
+	});
+
+	it('says a reading below the leads is a bad zero on a range that shows the leads (0.01 Ω count)', () => {
+		// 0.15 Ω read with 0.20 Ω leads: the part cannot read less than the leads in series.
+		expect(isBadZero(0.15, 0.2, 0.01)).toBe(true);
+	});
+
+	it('does not call 0 read on a 10 Ω-count range a bad zero: 0.20 Ω leads do not show there', () => {
+		expect(isBadZero(0, 0.2, 10)).toBe(false);
+	});
+});
+
+describe('compensatedUncertainty', () => {
+	// The meter's accuracy specification form ±(% of reading + counts), one count being the
+	// range's resolution; the two limits of error are added (worst-case linear sum, common
+	// practice: a limit of error is not a standard deviation, so no root-sum-square).
+	it('is ±0.04405 Ω for 0.61 Ω read with 0.20 Ω leads at ±(0.5 % + 2 counts), 0.01 Ω resolution', () => {
+		// (0.61 × 0.5 % + 2 × 0.01) + (0.20 × 0.5 % + 2 × 0.01) = 0.02305 + 0.021 = 0.04405.
+		expect(compensatedUncertainty(0.61, 0.2, FINE_OHMS)).toBeCloseTo(0.04405, 12);
+	});
+
+	it('is worked out on what the meter showed, not on the 0.41 Ω left after the leads', () => {
+		// The old figure, u(0.41) = 0.00205 + 0.02 = 0.02205 Ω, ignored the lead reading's error.
+		expect(compensatedUncertainty(0.61, 0.2, FINE_OHMS)).not.toBeCloseTo(uncertainty(0.41, FINE_OHMS), 3);
+	});
+
+	it('takes the lead reading’s error on the range the leads were read on', () => {
+		// 12.28 kΩ at ±(0.8 % + 1), 10 Ω → 108.24 Ω; leads 0.20 Ω on the 0.01 Ω range → 0.021 Ω.
+		const kilo = { pctOfReading: 0.8, counts: 1, resolution: 10 };
+		expect(compensatedUncertainty(12280.2, 0.2, kilo, FINE_OHMS)).toBeCloseTo(108.24 + 0.021 + 0.0016, 9);
+	});
+
+	it('adds the counts of the lead reading even when the leads read 0', () => {
+		expect(compensatedUncertainty(0.5, 0, FINE_OHMS)).toBeCloseTo(0.0025 + 0.02 + 0.02, 12);
+	});
+});
+
+describe('isHighestRange', () => {
+	const ranges = [
+		{ resolution: 0.01, maxReading: 19.99 },
+		{ resolution: 0.1, maxReading: 199.9 },
+		{ resolution: 100, maxReading: 199900 }
+	];
+	it.each([
+		[0, false],
+		[1, false],
+		[2, true]
+	])('says range %d of 20 Ω / 200 Ω / 200 kΩ is the highest: %s', (i, expected) => {
+		expect(isHighestRange(ranges[i], ranges)).toBe(expected);
+	});
+
+	it('compares by resolution when a range states no largest reading', () => {
+		const loose = [{ resolution: 0.1 }, { resolution: 10 }];
+		expect([isHighestRange(loose[0], loose), isHighestRange(loose[1], loose)]).toEqual([false, true]);
+	});
+
+	it('calls the only range the highest', () => {
+		expect(isHighestRange(ranges[0], [ranges[0]])).toBe(true);
 	});
 });
 
@@ -190,8 +250,25 @@ describe('pickSettled', () => {
 		expect(pickSettled([0.4, 0.41, 0.55])?.suspects).toEqual([2]);
 	});
 
-	it('flags an OL sample among finite ones', () => {
-		expect(pickSettled([12300, Infinity, 12280])?.suspects).toEqual([1]);
+	it('never settles on a flagged sample: 0.20 among 0.41 and 0.42 is left out, 0.41 kept', () => {
+		// Median 0.41; 0.20 is 51 % below it. The plain lowest would have been the flagged 0.20.
+		expect(pickSettled([0.2, 0.41, 0.42])).toEqual({ value: 0.41, mode: 'lowest', suspects: [0] });
+	});
+
+	it('flags an OL sample among finite ones and settles on the others', () => {
+		expect(pickSettled([12300, Infinity, 12280])).toMatchObject({ value: 12290, suspects: [1] });
+	});
+
+	it('does not flag a difference the meter cannot resolve (within the combined ±)', () => {
+		// 0.05 / 0.06 / 0.07 Ω at ±(0.5 % + 2 counts), 0.01 Ω: 0.07 is 17 % off the median but
+		// only 0.01 Ω away, less than u(0.07) + u(0.06) = 0.02035 + 0.0203.
+		const uncertaintyOf = (v: number) => uncertainty(v, FINE_OHMS);
+		expect(pickSettled([0.05, 0.06, 0.07], { uncertaintyOf })?.suspects).toEqual([]);
+		expect(pickSettled([0.05, 0.06, 0.07])?.suspects).toEqual([0, 2]);
+	});
+
+	it('takes the median when told to, whatever the value (voltage, current)', () => {
+		expect(pickSettled([0.42, 0.4, 0.41], { mode: 'median' })).toMatchObject({ value: 0.41, mode: 'median' });
 	});
 
 	it('flags nothing with only two samples', () => {

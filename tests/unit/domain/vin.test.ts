@@ -1,6 +1,7 @@
 import { describe, it, expect } from 'vitest';
 import fc from 'fast-check';
 import {
+	modelYearCode,
 	normalizeVin,
 	TRANSLITERATION,
 	validateVin,
@@ -153,5 +154,33 @@ describe('validateVin, properties', () => {
 				expect(validateVin(typo).warnings).toHaveLength(1);
 			})
 		);
+	});
+});
+
+describe('modelYearCode (49 CFR 565.15(a), the model-year table for position 10)', () => {
+	it.each([
+		[1980, 'A'],
+		[2000, 'Y'],
+		[2001, '1'],
+		[2009, '9'],
+		[2010, 'A'],
+		[2016, 'G'],
+		[2018, 'J'],
+		[2019, 'K'],
+		[2022, 'N'],
+		[2023, 'P'],
+		[2024, 'R'],
+		[2030, 'Y']
+	])('gives %d the code %s', (year, code) => {
+		expect(modelYearCode(year)).toBe(code);
+	});
+
+	it('never uses I, O, Q, U, Z or 0', () => {
+		const codes = Array.from({ length: 30 }, (_, i) => modelYearCode(1980 + i)).join('');
+		expect(codes).not.toMatch(/[IOQUZ0]/);
+	});
+
+	it.each([[1979], [2019.5]])('has no code for %d', (year) => {
+		expect(() => modelYearCode(year)).toThrow(RangeError);
 	});
 });

@@ -27,11 +27,23 @@ describe('which spec applies', () => {
 		['measured 20 °C', { mode: 'measured' as const, tempC: 20 }, [50]],
 		['measured 75 °C', { mode: 'measured' as const, tempC: 75 }, [100]],
 		['measured 47 °C, within 5 °C of the edge', { mode: 'measured' as const, tempC: 47 }, [50, 100]],
+		['measured 110 °C, beyond every band', { mode: 'measured' as const, tempC: 110 }, []],
 		['measured 50 °C, on the edge', { mode: 'measured' as const, tempC: 50 }, [50, 100]],
 		['warm', { mode: 'warm' as const }, [50, 100]],
 		['unknown', { mode: 'unknown' as const }, [50, 100]]
 	])('%s gives the bands ending at %j', (_name, t, ends) => {
 		expect(bandsFor(PRIMARY.bands, t).map((b) => b.toC)).toEqual(ends);
+	});
+
+	it('does not apply a sheet’s only band outside its temperatures (a hot spec to a cold part)', () => {
+		const hotOnly = [{ fromC: 50, toC: 100, min: 0.45, max: 0.65 }];
+		expect(bandsFor(hotOnly, { mode: 'overnight' })).toEqual([]);
+		expect(bandsFor(hotOnly, { mode: 'just_run' })).toEqual(hotOnly);
+	});
+
+	it('applies a band for any temperature at every temperature', () => {
+		const any = [{ fromC: null, toC: null, min: 9000, max: 15400 }];
+		expect(bandsFor(any, { mode: 'measured', tempC: 130 })).toEqual(any);
 	});
 });
 
@@ -59,10 +71,55 @@ describe('a reading judged', () => {
 		expect(rel.verdict).toBe('high');
 	});
 
-	it('flags a bad zero when the reading is below the leads, and never goes below zero', () => {
+	it('calls 0.15 Ω read with 0.20 Ω leads “can’t tell — re-zero the leads”, never under spec', () => {
 		const r = evaluateReading(PRIMARY, [{ value: 0.15, unit: 'Ω' }], { ...FINE, leadResistance: 0.2 }, cold);
 		expect(r.badZero).toBe(true);
+		expect(r.verdict).toBe('bad_zero');
+		expect(r.bands).toEqual([]);
 		expect(r.value).toBe(0);
+	});
+
+	it('adds the lead reading’s error: 0.61 Ω with 0.20 Ω leads is 0.41 ± 0.044 Ω — can’t tell against 0.38 Ω', () => {
+		// Meter accuracy form ±(0.5 % + 2 counts) at 0.01 Ω; worst-case sum of the two limits of
+		// error (common practice): (0.00305 + 0.02) + (0.001 + 0.02) = 0.04405 Ω. The demo
+		// coil's invented cold spec starts at 0.38 Ω: 0.41 − 0.044 = 0.366 straddles it.
+		const demo: CheckSpec = { ...PRIMARY, bands: [{ fromC: null, toC: 50, min: 0.38, max: 0.58 }] };
+		const r = evaluateReading(demo, [{ value: 0.61, unit: 'Ω' }], { ...FINE, leadResistance: 0.2 }, cold);
+		expect(r.value).toBeCloseTo(0.41, 12);
+		expect(r.u).toBeCloseTo(0.04405, 12);
+		expect(r.verdict).toBe('borderline');
+	});
+
+	it('carries the zeroing reading’s error in relative mode the same way', () => {
+		// The meter zeroed on 0.20 Ω and shows 0.41 Ω: it read 0.61 Ω, so the ± is the same 0.04405.
+		const rel = { ...FINE, relativeMode: true, zeroReading: 0.2 };
+		const r = evaluateReading(PRIMARY, [{ value: 0.41, unit: 'Ω' }], rel, cold);
+		expect(r.value).toBeCloseTo(0.41, 12);
+		expect(r.u).toBeCloseTo(0.04405, 12);
+	});
+
+	it('leaves a far sample out of the value: 0.62 / 0.63 / 0.30 with 0.20 Ω leads settles on 0.62 − 0.20', () => {
+		const r = evaluateReading(PRIMARY, [0.62, 0.63, 0.3].map((value) => ({ value, unit: 'Ω' })), { ...FINE, leadResistance: 0.2 }, cold);
+		expect(r.suspects).toEqual([2]);
+		expect(r.value).toBeCloseTo(0.42, 12);
+		expect(r.verdict).toBe('within');
+	});
+
+	it('settles voltage on the median, not the lowest, and judges it in volts', () => {
+		const feed: CheckSpec = { key: 'feed', quantity: 'voltage', unit: 'V', openOk: false, bands: [{ fromC: null, toC: null, min: 11.5, max: 15 }] };
+		const volts = { resolution: 0.01, pctOfReading: 0.5, counts: 2, leadResistance: 0.2, relativeMode: false };
+		const r = evaluateReading(feed, [12.1, 12.6, 12.5].map((value) => ({ value, unit: 'V' })), volts, cold);
+		expect(r).toMatchObject({ settleMode: 'median', value: 12.5, verdict: 'within' });
+		// The leads are not taken off a voltage: 12.5 V at ±(0.5 % + 2) → 0.0625 + 0.02.
+		expect(r.u).toBeCloseTo(0.0825, 12);
+	});
+
+	it('reads millivolts of a voltage drop in volts', () => {
+		const drop: CheckSpec = { key: 'earth', quantity: 'voltage_drop', unit: 'mV', openOk: false, bands: [{ fromC: null, toC: null, min: null, max: 0.5 }] };
+		const mv = { resolution: 0.0001, pctOfReading: 0.5, counts: 2, leadResistance: 0, relativeMode: false };
+		const r = evaluateReading(drop, [{ value: 620, unit: 'mV' }], mv, cold);
+		expect(r.value).toBeCloseTo(0.62, 12);
+		expect(r.verdict).toBe('high');
 	});
 
 	it('says "depends" when the cold and hot specs disagree near the edge', () => {
@@ -84,14 +141,32 @@ describe('a reading judged', () => {
 		expect(evaluateReading(PRIMARY, [{ value: 0.3, unit: 'Ω' }], FINE, cold).verdict).toBe('low');
 	});
 
-	it('judges OL high unless the check accepts an open circuit', () => {
-		expect(evaluateReading(PRIMARY, [{ value: 'OL', unit: 'Ω' }], FINE, cold).verdict).toBe('high');
-		expect(evaluateReading({ ...PRIMARY, openOk: true }, [{ value: 'OL', unit: 'Ω' }], FINE, cold).verdict).toBe('within');
+	it('judges OL on the meter’s highest range high (an open circuit) unless the check accepts open', () => {
+		const top = { ...FINE, highest: true };
+		expect(evaluateReading(PRIMARY, [{ value: 'OL', unit: 'Ω' }], top, cold).verdict).toBe('high');
+		expect(evaluateReading({ ...PRIMARY, openOk: true }, [{ value: 'OL', unit: 'Ω' }], top, cold).verdict).toBe('within');
+	});
+
+	it('calls OL on a range that is not the highest “over range”, unless the sheet accepts open', () => {
+		const low = { ...FINE, highest: false };
+		expect(evaluateReading(PRIMARY, [{ value: 'OL', unit: 'Ω' }], low, cold).verdict).toBe('over_range');
+		expect(evaluateReading({ ...PRIMARY, openOk: true }, [{ value: 'OL', unit: 'Ω' }], low, cold).verdict).toBe('within');
 	});
 
 	it('has no verdict without a spec or without samples', () => {
 		expect(evaluateReading({ ...PRIMARY, bands: [] }, [{ value: 1, unit: 'Ω' }], FINE, cold).verdict).toBe('no_spec');
 		expect(evaluateReading(PRIMARY, [], FINE, cold).value).toBeNull();
+	});
+
+	it('has no verdict at 110 °C with a cold and a hot spec up to 100 °C', () => {
+		expect(evaluateReading(PRIMARY, [{ value: 0.5, unit: 'Ω' }], FINE, { mode: 'measured', tempC: 110 }).verdict).toBe('no_spec');
+	});
+
+	it('takes a visual check’s finding: OK or not OK', () => {
+		const look: CheckSpec = { key: 'boot', quantity: 'visual', unit: null, openOk: false, bands: [] };
+		expect(evaluateReading(look, [], FINE, cold, { ok: true }).verdict).toBe('within');
+		expect(evaluateReading(look, [], FINE, cold, { ok: false, note: 'Tracking on the boot' }).verdict).toBe('not_ok');
+		expect(evaluateReading(look, [], FINE, cold).verdict).toBe('no_spec');
 	});
 });
 
@@ -105,8 +180,36 @@ describe('the meter for one reading', () => {
 		relativeMode: false
 	};
 	it('takes the named range, else the first, with the test’s leads', () => {
-		expect(meterFor(meter, '20 kΩ')).toEqual({ label: '20 kΩ', resolution: 10, pctOfReading: 0.8, counts: 1, leadResistance: 0.2, relativeMode: false });
+		expect(meterFor(meter, '20 kΩ')).toEqual({
+			resolution: 10,
+			pctOfReading: 0.8,
+			counts: 1,
+			leadResistance: 0.2,
+			relativeMode: false,
+			leadRange: { resolution: 0.1, pctOfReading: 0.8, counts: 3 },
+			highest: true,
+			quantity: 'resistance'
+		});
 		expect(meterFor(meter, 'nope').resolution).toBe(0.1);
+	});
+
+	it('knows the 200 Ω range is not the highest: OL there is over range', () => {
+		expect(meterFor(meter, '200 Ω').highest).toBe(false);
+	});
+
+	it('picks a range of the check’s quantity and finds the highest among those alone', () => {
+		const mixed = {
+			...meter,
+			ranges: [
+				...meter.ranges,
+				{ label: '20 V', resolution: 0.01, pctOfReading: 0.5, counts: 2, maxReading: 19.99, quantity: 'voltage' as const },
+				{ label: '200 V', resolution: 0.1, pctOfReading: 0.5, counts: 2, maxReading: 199.9, quantity: 'voltage' as const }
+			]
+		};
+		expect(meterFor(mixed, null, 'voltage')).toMatchObject({ resolution: 0.01, highest: false, quantity: 'voltage' });
+		expect(meterFor(mixed, '200 V')).toMatchObject({ highest: true, quantity: 'voltage' });
+		// The leads were read on the finest Ω range, whatever the reading's range.
+		expect(meterFor(mixed, '200 V').leadRange).toEqual({ resolution: 0.1, pctOfReading: 0.8, counts: 3 });
 	});
 });
 
@@ -115,5 +218,10 @@ describe('comparing the phone’s and the server’s result', () => {
 		expect(sameResult({ value: 0.42, verdict: 'within' }, { value: 0.42 + 1e-12, verdict: 'within' })).toBe(true);
 		expect(sameResult({ value: 0.42, verdict: 'within' }, { value: 0.42, verdict: 'high' })).toBe(false);
 		expect(sameResult({ value: 0.42, verdict: 'within' }, { value: 0.43, verdict: 'within' })).toBe(false);
+	});
+
+	it('treats the phone’s OL (null with ol) as the server’s Infinity', () => {
+		expect(sameResult({ value: null, verdict: 'high', ol: true }, { value: Infinity, verdict: 'high' })).toBe(true);
+		expect(sameResult({ value: null, verdict: 'high' }, { value: Infinity, verdict: 'high' })).toBe(false);
 	});
 });

@@ -191,7 +191,7 @@ describe('the library CSV layout', () => {
 				record: 'fits',
 				part_number: 'ZX-1',
 				make: 'Corvane',
-				model: 'Sable',
+				model: 'Brisel',
 				year_from: '20x9'
 			}),
 			lineOf({ record: 'sheet', part_number: 'ZX-1', sheet_version: '1', state: 'draft' }),
@@ -282,7 +282,7 @@ describe('the library CSV layout', () => {
 
 	it('reports lines that name a missing component, sheet or check', () => {
 		const text = csvOf([
-			lineOf({ record: 'fits', part_number: 'NOPE-1', make: 'Corvane', model: 'Sable' }),
+			lineOf({ record: 'fits', part_number: 'NOPE-1', make: 'Corvane', model: 'Brisel' }),
 			lineOf({ record: 'component', part_number: 'ZX-1', kind: 'relay' }),
 			lineOf({
 				record: 'check',

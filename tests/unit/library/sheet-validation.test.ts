@@ -233,10 +233,10 @@ describe('a component', () => {
 			'positions.1.position'
 		],
 		[
-			{ fitment: [{ make: 'Corvane', model: 'Sable', yearFrom: 2020, yearTo: 2017 }] },
+			{ fitment: [{ make: 'Corvane', model: 'Brisel', yearFrom: 2020, yearTo: 2017 }] },
 			'fitment.0.yearTo'
 		],
-		[{ fitment: [{ make: '', model: 'Sable' }] }, 'fitment.0.make'],
+		[{ fitment: [{ make: '', model: 'Brisel' }] }, 'fitment.0.make'],
 		[{ cautions: ['lasers'] }, 'cautions.0'],
 		[{ kind: 'widget' }, 'kind'],
 		[{ partNumber: ' ' }, 'partNumber']

@@ -31,6 +31,8 @@ export type CheckForm = {
 	unit: string;
 	openOk: boolean;
 	bands: BandForm[];
+	/** A pack's coil the check belongs to; '' for every coil. */
+	coil: string;
 };
 export type SheetForm = { checks: CheckForm[]; document: string; section: string; page: string };
 
@@ -70,7 +72,8 @@ export function newCheck(): CheckForm {
 		rangeHint: '',
 		unit: UNITS_BY_QUANTITY.resistance[0],
 		openOk: false,
-		bands: [coldBand(), hotBand()]
+		bands: [coldBand(), hotBand()],
+		coil: ''
 	};
 }
 
@@ -97,6 +100,7 @@ function checkForm(c: Check): CheckForm {
 		rangeHint: c.rangeHint ?? '',
 		unit: c.unit ?? '',
 		openOk: c.openOk,
+		coil: c.coil ?? '',
 		bands: c.bands.map((b) => ({
 			uid: next(),
 			fromC: num(b.fromC),
@@ -139,6 +143,7 @@ export function inputFromForm(form: SheetForm, componentId: string) {
 			rangeHint: c.rangeHint,
 			unit: c.quantity === 'visual' ? null : c.unit,
 			openOk: c.quantity === 'resistance' && c.openOk,
+			coil: c.coil,
 			bands:
 				c.quantity === 'visual'
 					? []

@@ -18,7 +18,7 @@ export function momentOf(iso: string | Date | null | undefined): string {
 	return `${dayOf(d)}, ${d.toISOString().slice(11, 16)} UTC`;
 }
 
-/** "Corvane Sable · TB24 KQL" */
+/** "Corvane Brisel · TB24 KQL" */
 export function vehicleLabel(
 	v: { make: string; model: string; plate?: string | null; year?: number | null } | null
 ) {

@@ -31,7 +31,7 @@ export function groupByTable<T, V>(
 }
 
 const camel = (s: string) => s.replace(/_([a-z])/g, (_m, c: string) => c.toUpperCase());
-const JSON_COLUMNS = new Set(['samples', 'device_result', 'server_result', 'before_counts', 'after_counts']);
+const JSON_COLUMNS = new Set(['samples', 'visual', 'device_result', 'server_result', 'before_counts', 'after_counts']);
 const HIDDEN = new Set(['workshop_id', 'op_id', 'seq']);
 
 /** The public record of an append-only row, as the pull sends it (camelCase, parsed JSON). */

@@ -37,6 +37,7 @@ export const VEHICLE_FIELDS = [
 	'model',
 	'year',
 	'engineCode',
+	'cylinders',
 	'odometer',
 	'odometerUnit',
 	'hybrid'

@@ -31,8 +31,8 @@ export const emptyDelta = (): SummaryDelta => ({
 export function addReading(d: SummaryDelta, verdict: string, unresolved: 0 | 1 | null) {
 	const s = d.counts;
 	s[0]++;
-	if (verdict === 'low' || verdict === 'high') s[1]++;
-	else if (verdict === 'borderline' || verdict === 'depends') s[2]++;
+	if (verdict === 'low' || verdict === 'high' || verdict === 'not_ok') s[1]++;
+	else if (verdict === 'borderline' || verdict === 'depends' || verdict === 'bad_zero' || verdict === 'over_range') s[2]++;
 	else if (verdict === 'within') s[3]++;
 	if (unresolved !== null) {
 		s[4] += unresolved;

@@ -65,12 +65,13 @@ const VEHICLES = [
 	{
 		id: ID(201),
 		customerId: ID(101),
-		vin: '0CV4SB216RT000417',
+		vin: '0CV4SB219KT000417',
 		plate: 'TB24 KQL',
 		make: 'Corvane',
-		model: 'Sable',
+		model: 'Brisel',
 		year: 2019,
 		engineCode: 'CV16T',
+		cylinders: 4,
 		odometer: 84210,
 		odometerUnit: 'km',
 		hybrid: false
@@ -78,12 +79,13 @@ const VEHICLES = [
 	{
 		id: ID(202),
 		customerId: ID(102),
-		vin: '0CV2PC164ST003852',
+		vin: '0CV2PC165GT003852',
 		plate: 'TB19 XRW',
 		make: 'Corvane',
 		model: 'Pica',
 		year: 2016,
 		engineCode: 'CV14N',
+		cylinders: 4,
 		odometer: 131907,
 		odometerUnit: 'km',
 		hybrid: false
@@ -91,12 +93,13 @@ const VEHICLES = [
 	{
 		id: ID(203),
 		customerId: ID(101),
-		vin: '0TS7HM409PT010266',
+		vin: '0TS7HM402NT010266',
 		plate: 'TB22 HVN',
 		make: 'Tessaly',
-		model: 'Meridian',
+		model: 'Ondrava',
 		year: 2022,
 		engineCode: 'TS20H',
+		cylinders: 4,
 		odometer: 30455,
 		odometerUnit: 'km',
 		hybrid: true
@@ -122,7 +125,17 @@ const JOBS = [
 		assigneeId: DEMO_USERS[3].id,
 		complaint: 'Rough running once warm; hesitates under load.',
 		location: 'Workshop bay 2',
-		codesBefore: []
+		codesBefore: [{ code: 'P0300', text: 'Random misfire detected' }]
+	},
+	{
+		id: ID(303),
+		number: 1003,
+		customerId: ID(101),
+		vehicleId: ID(203),
+		assigneeId: DEMO_USERS[3].id,
+		complaint: 'Hybrid: engine misfires when it starts by itself in READY mode; warning light on.',
+		location: 'Workshop bay 1 (high-voltage bay)',
+		codesBefore: [{ code: 'P0302', text: 'Cylinder 2 misfire detected' }]
 	}
 ];
 
@@ -131,8 +144,33 @@ const COIL = {
 	partNumber: 'TB-IC-2041',
 	kind: 'ignition_coil',
 	description: 'Pencil ignition coil, one per cylinder (demo part, invented figures)',
-	fitment: [{ make: 'Corvane', model: 'Sable', yearFrom: 2017, yearTo: 2022, engineCode: 'CV16T' }],
+	fitment: [{ make: 'Corvane', model: 'Brisel', yearFrom: 2017, yearTo: 2022, engineCode: 'CV16T' }],
 	cautions: ['high_voltage'],
+	positions: []
+};
+
+/** The two-coil pack of the README's CSV example, on the apprentice's job (invented). */
+const PACK = {
+	id: ID(402),
+	partNumber: 'QX-CP-3307',
+	kind: 'coil_pack',
+	description: 'Two-coil pack, waste spark (demo part, invented figures)',
+	fitment: [{ make: 'Corvane', model: 'Pica', yearFrom: 2014, yearTo: 2018, engineCode: 'CV14N' }],
+	cautions: ['high_voltage'],
+	positions: [
+		{ position: 'A', cylinders: [1, 4] },
+		{ position: 'B', cylinders: [2, 3] }
+	]
+};
+
+/** An airbag part: the test screen refuses ohmmeter checks on it (invented). */
+const AIRBAG = {
+	id: ID(403),
+	partNumber: 'TB-AB-0711',
+	kind: 'other',
+	description: 'Driver airbag module (demo part): never tested with an ohmmeter',
+	fitment: [{ make: 'Corvane', model: 'Brisel', yearFrom: 2017, yearTo: 2022, engineCode: 'CV16T' }],
+	cautions: ['airbag'],
 	positions: []
 };
 
@@ -149,7 +187,7 @@ const COIL_SHEET = {
 			from: '1',
 			to: '2',
 			condition: 'key_off',
-			rangeHint: '200 Ω',
+			rangeHint: 'lowest Ω range',
 			unit: 'Ω',
 			openOk: false,
 			bands: [
@@ -171,7 +209,61 @@ const COIL_SHEET = {
 				{ fromC: null, toC: 50, min: 8800, max: 14600 },
 				{ fromC: 50, toC: 100, min: 11000, max: 17400 }
 			]
+		},
+		{
+			key: 'spark_gap',
+			label: 'Spark across the tester gap',
+			quantity: 'spark',
+			from: 'HT',
+			to: 'earth',
+			condition: 'cranking',
+			rangeHint: null,
+			unit: 'mm',
+			openOk: false,
+			bands: [{ fromC: null, toC: null, min: 0.007, max: 0.007 }]
 		}
+	]
+};
+
+const winding = (coil: string, key: string, label: string, unit: string, hint: string, bands: object[]) => ({
+	key: `${key}_${coil.toLowerCase()}`,
+	label: `${label}, coil ${coil}`,
+	quantity: 'resistance',
+	from: key === 'primary' ? '1' : `HT${coil === 'A' ? 1 : 2}`,
+	to: key === 'primary' ? (coil === 'A' ? '2' : '3') : `HT${coil === 'A' ? 4 : 3}`,
+	condition: 'key_off',
+	rangeHint: hint,
+	unit,
+	openOk: false,
+	bands,
+	coil
+});
+
+/** The pack's sheet: each coil's windings (checked once, under that coil) and a look at the case. Invented figures. */
+const PACK_SHEET = {
+	id: ID(502),
+	componentId: PACK.id,
+	source: { document: 'Invented data sheet', section: '3', page: '7' },
+	checks: [
+		{
+			key: 'case',
+			label: 'Case and towers: cracks, tracking, corrosion',
+			quantity: 'visual',
+			from: null,
+			to: null,
+			condition: 'key_off',
+			rangeHint: null,
+			unit: null,
+			openOk: false,
+			bands: []
+		},
+		...['A', 'B'].flatMap((coil) => [
+			winding(coil, 'primary', 'Primary winding', 'Ω', 'lowest Ω range', [
+				{ fromC: null, toC: 50, min: 0.5, max: 0.8 },
+				{ fromC: 50, toC: 100, min: 0.6, max: 0.9 }
+			]),
+			winding(coil, 'secondary', 'Secondary winding', 'kΩ', '20 kΩ', [{ fromC: null, toC: 50, min: 9100, max: 12400 }])
+		])
 	]
 };
 
@@ -211,28 +303,28 @@ export async function seedDemo(): Promise<number> {
 			({ id, number, ...j }) =>
 				[Job, id, () => jobs.create(lead, j, { id, serverFields: { number } })] as Step
 		),
-		[
-			Component,
-			COIL.id,
-			() => components.create(lead, (({ id, ...c }) => c)(COIL), { id: COIL.id })
-		],
-		[
-			SpecSheet,
-			COIL_SHEET.id,
-			async () => {
-				const { id, ...s } = COIL_SHEET;
-				const draft = await sheets.create(lead, s, { id });
-				await sheets.update(
-					lead,
+		...[COIL, PACK, AIRBAG].map(
+			({ id, ...c }) => [Component, id, () => components.create(lead, c, { id })] as Step
+		),
+		...[COIL_SHEET, PACK_SHEET].map(
+			({ id, ...s }) =>
+				[
+					SpecSheet,
 					id,
-					draft.version as number,
-					{},
-					{
-						serverFields: { state: 'approved', approvedBy: lead.userId, approvedAt: new Date() }
+					async () => {
+						const draft = await sheets.create(lead, s, { id });
+						await sheets.update(
+							lead,
+							id,
+							draft.version as number,
+							{},
+							{
+								serverFields: { state: 'approved', approvedBy: lead.userId, approvedAt: new Date() }
+							}
+						);
 					}
-				);
-			}
-		]
+				] as Step
+		)
 	];
 	for (const [model, id, make] of steps) {
 		if (await missing(model, id)) {

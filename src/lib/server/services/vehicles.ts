@@ -43,6 +43,7 @@ export type VehicleRecord = {
 	model: string;
 	year: number | null;
 	engineCode: string | null;
+	cylinders: number | null;
 	odometer: number | null;
 	odometerUnit: 'km' | 'mi';
 	hybrid: boolean;

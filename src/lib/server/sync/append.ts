@@ -16,7 +16,7 @@
  * the commit.
  */
 import type { Transaction } from 'sequelize';
-import { bandsFor, evaluateReading, meterFor, sameResult, type CheckSpec, type TemperatureSnapshot } from '../../flow/reading';
+import { bandsFor, evaluateReading, meterFor, rangeQuantityOf, sameResult, type CheckSpec, type TemperatureSnapshot, type VisualFinding } from '../../flow/reading';
 import { rangeResolves } from '../../flow/decisions';
 import { readingCreate, signoffCreate, sparkTestCreate, swapTestCreate } from '../../schemas/records';
 import type { Op, PushResult, Reason } from '../../sync/protocol';
@@ -45,12 +45,13 @@ type TestInfo = TestRow & {
 	job: JobInfo;
 	meterSetup: MeterSetup;
 	tempSnap: TemperatureSnapshot;
-	meters: Map<string | null, ReturnType<typeof meterFor>>;
+	meters: Map<string, ReturnType<typeof meterFor>>;
 	sheetChecks: CheckSpec[] | undefined;
 };
-const meterOf = (test: TestInfo, rangeLabel: string | null) => {
-	let m = test.meters.get(rangeLabel);
-	if (!m) test.meters.set(rangeLabel, (m = meterFor(test.meterSetup, rangeLabel)));
+const meterOf = (test: TestInfo, rangeLabel: string | null, quantity: string) => {
+	const key = `${quantity}|${rangeLabel}`;
+	let m = test.meters.get(key);
+	if (!m) test.meters.set(key, (m = meterFor(test.meterSetup, rangeLabel, rangeQuantityOf(quantity))));
 	return m;
 };
 /**
@@ -77,7 +78,7 @@ const BASE = ['workshop_id', 'id', 'op_id', 'created_by', 'device_id', 'device_t
  * building a 15-key object by spreading another costs more than the rest of a reading.
  */
 const COLUMNS: Record<AppendTable, readonly string[]> = {
-	readings: [...BASE, 'check_key', 'position', 'samples', 'range_label', 'device_result', 'server_result', 'mismatch', 'server_verdict', 'range_unresolved'],
+	readings: [...BASE, 'check_key', 'position', 'samples', 'visual', 'range_label', 'device_result', 'server_result', 'mismatch', 'server_verdict', 'range_unresolved'],
 	signoffs: [...BASE, 'mode', 'decision', 'note'],
 	spark_tests: [...BASE, 'note', 'position', 'gap_mm', 'outcome'],
 	swap_tests: [...BASE, 'note', 'from_position', 'to_position', 'before_counts', 'after_counts', 'conclusion']
@@ -180,8 +181,9 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 			const check = checks?.find((c) => c.key === f.checkKey);
 			if (checks && !check) return reject(op, 'invalid', `checkKey: no check ${f.checkKey} on the pinned sheet`);
 			const spec = check ?? { key: f.checkKey as string, quantity: 'resistance', unit: 'Ω', openOk: false, bands: [] };
-			const meter = meterOf(test, (f.rangeLabel as string | null | undefined) ?? null);
-			const server = evaluateReading(spec, f.samples as never, meter, test.tempSnap);
+			const visual = (f.visual as VisualFinding | null | undefined) ?? null;
+			const meter = meterOf(test, (f.rangeLabel as string | null | undefined) ?? null, spec.quantity);
+			const server = evaluateReading(spec, f.samples as never, meter, test.tempSnap, visual);
 			const device = f.deviceResult as { value: number | null; verdict: string } | null | undefined;
 			const mismatch = device != null && !sameResult(device as never, server);
 			// Whether the range could tell a reading from the limits (unknown with no pinned sheet).
@@ -190,7 +192,7 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 			const prepared: Prepared = {
 				op,
 				table: 'readings',
-				row: row(test.job_id, test.id, f.checkKey, f.position ?? null, samples, f.rangeLabel ?? null, device ? toJson(device) : null, toJson(server), mismatch ? 1 : 0, server.verdict, unresolved),
+				row: row(test.job_id, test.id, f.checkKey, f.position ?? null, samples, visual ? JSON.stringify(visual) : null, f.rangeLabel ?? null, device ? toJson(device) : null, toJson(server), mismatch ? 1 : 0, server.verdict, unresolved),
 				same: `${f.checkKey}|${samples}`,
 				summary: { testId: test.id, verdict: server.verdict, unresolved }
 			};

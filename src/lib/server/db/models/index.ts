@@ -116,6 +116,7 @@ export class Vehicle extends Model {
 	declare model: string;
 	declare year: number | null;
 	declare engineCode: string | null;
+	declare cylinders: number | null;
 	declare odometer: number | null;
 	declare odometerUnit: 'km' | 'mi';
 	declare hybrid: boolean;
@@ -282,6 +283,7 @@ export function initModels(s: Sequelize): void {
 			model: str(60),
 			year: { type: DataTypes.SMALLINT, allowNull: true },
 			engineCode: str(30, true),
+			cylinders: { type: DataTypes.TINYINT.UNSIGNED, allowNull: true },
 			odometer: { type: DataTypes.INTEGER, allowNull: true },
 			odometerUnit: { type: DataTypes.ENUM('km', 'mi'), allowNull: false, defaultValue: 'km' },
 			hybrid: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false }
