@@ -120,7 +120,7 @@ beforeAll(async () => {
 	await saveReportSettings(l, 0, { address: '3 Harrow Lane, Millbrook', phone: '0100 555 0199', email: '', paper: 'a4', linkDays: 30, techniciansSend: false });
 	consenting = (await customers.create(l, { name: 'Orla Brindle', email: `orla-${uuidv7().slice(-8)}@example.net`, reportConsent: true })).id as string;
 	refusing = (await customers.create(l, { name: 'Cato Fenwick', email: 'cato@example.net', reportConsent: false })).id as string;
-	vehicleId = (await vehicles.create(l, { vin: '0CV4SB216RT000417', make: 'Corvane', model: 'Sable', year: 2019, plate: 'TB24 KQL', customerId: consenting })).id as string;
+	vehicleId = (await vehicles.create(l, { vin: '0CV4SB219KT000417', make: 'Corvane', model: 'Brisel', year: 2019, plate: 'TB24 KQL', customerId: consenting })).id as string;
 	componentId = (await components.create(l, { partNumber: `RP-${uuidv7().slice(-6)}`, kind: 'ignition_coil' })).id as string;
 	const draft = await sheets.create(l, { componentId, checks: CHECKS });
 	sheetId = draft.id as string;

@@ -13,7 +13,7 @@ import {
 const NAMES: Names = {
 	people: new Map([['u1', 'Sanna Velloway']]),
 	customers: new Map([['c1', 'Ilse Marrow']]),
-	vehicles: new Map([['v1', 'Corvane Sable TB24 KQL']])
+	vehicles: new Map([['v1', 'Corvane Brisel TB24 KQL']])
 };
 
 describe('a clashing field in the product’s words', () => {
@@ -31,7 +31,7 @@ describe('a clashing field in the product’s words', () => {
 		expect(valueText('person', 'u1', NAMES)).toBe('Sanna Velloway');
 		expect(valueText('person', 'u9', NAMES)).toBe('Someone no longer in the workshop');
 		expect(valueText('customer', 'c1', NAMES)).toBe('Ilse Marrow');
-		expect(valueText('vehicle', 'v1', NAMES)).toBe('Corvane Sable TB24 KQL');
+		expect(valueText('vehicle', 'v1', NAMES)).toBe('Corvane Brisel TB24 KQL');
 		expect(valueText('yesNo', true, NAMES)).toBe('Yes');
 		expect(
 			valueText('codes', [{ code: 'P0301', text: 'Cylinder 1 misfire' }, { code: 'P0302' }], NAMES)

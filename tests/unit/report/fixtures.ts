@@ -46,7 +46,7 @@ export function facts(over: Partial<ReportFacts> = {}): ReportFacts {
 		codesBefore: [{ code: 'P0303', text: 'Cylinder 3 misfire detected' }],
 		codesAfter: [],
 		customerName: 'Orla Brindle',
-		vehicle: { make: 'Corvane', model: 'Sable', year: 2019, plate: 'TB24 KQL', vin: null, odometer: 84210, odometerUnit: 'km' },
+		vehicle: { make: 'Corvane', model: 'Brisel', year: 2019, plate: 'TB24 KQL', vin: null, odometer: 84210, odometerUnit: 'km' },
 		workshop: { name: 'Harrow Lane Auto Electrics', address: '3 Harrow Lane, Millbrook', phone: '0100 555 0199', email: 'desk@harrowlane.example' },
 		technicians: ['Sanna Velloway'],
 		tests: [

@@ -49,7 +49,7 @@ async function screenNames(actor: Actor) {
 	};
 }
 
-/** "Job 1001 · Corvane Sable TB24 KQL" and the office page of each record. */
+/** "Job 1001 · Corvane Brisel TB24 KQL" and the office page of each record. */
 async function recordLabels(actor: Actor, refs: { entity: string; id: string }[]) {
 	const ids = (e: string) => [...new Set(refs.filter((r) => r.entity === e).map((r) => r.id))];
 	const w = { workshopId: actor.workshopId };
