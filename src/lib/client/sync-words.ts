@@ -55,6 +55,7 @@ export const FIELD_WORDS: Record<string, string> = {
 	temperature: 'temperature',
 	position: 'positions',
 	partNumber: 'part number',
+	retestOf: 'the test it re-tests',
 	checks: 'checks',
 	source: 'source of the figures',
 	description: 'description',

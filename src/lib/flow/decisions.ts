@@ -33,10 +33,8 @@ export function refuseTest(c: StartContext): string | null {
 	return refuseHybridWork(c, c.hybrid);
 }
 
-/** Whether a range can tell a reading from the limits of every band that applies. */
-export function rangeResolves(range: MeterRange, bands: readonly SpecBand[]): boolean {
-	return bands.every((b) => canResolve(range, b));
-}
+import { rangeResolves } from './reading';
+export { rangeResolves };
 
 /**
  * A warning before any reading when the range cannot resolve the check's limits in any

@@ -11,6 +11,7 @@
  * near the cold/hot edge or when it is unknown) → a verdict per band and overall.
  */
 import {
+	canResolve,
 	compensatedUncertainty,
 	compensateLeads,
 	isBadZero,
@@ -22,7 +23,11 @@ import {
 import { judge, type Judgement, type SpecBand, type Verdict } from '../domain/spec';
 import { bandFor } from '../domain/temperature';
 import { toBase } from '../domain/units';
-import { rangeResolves } from './decisions';
+
+/** Whether a range can tell a reading from the limits of every band that applies. */
+export function rangeResolves(range: MeterRange, bands: readonly SpecBand[]): boolean {
+	return bands.every((b) => canResolve(range, b));
+}
 
 export type Sample = { value: number | 'OL'; unit: string };
 /** What a meter range measures; voltage drop is read on a voltage range. */

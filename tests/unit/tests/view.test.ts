@@ -69,7 +69,7 @@ describe('a job’s tests as the pages show them', () => {
 	const view = buildJobTests({
 		tests: [test],
 		readings: [
-			reading('r1', '1', 0.62), // 0.62 − 0.10 leads = 0.52 Ω: inside 0.36–0.55
+			reading('r1', '1', 0.57), // 0.57 − 0.10 leads = 0.47 Ω ± 0.043 Ω: inside 0.36–0.55 (the reading's and the leads' limits of error added)
 			reading('r2', '2', 0.6, { value: 0.6, verdict: 'high' }), // the phone forgot the leads
 			reading('r3', '3', 0.95), // 0.85 Ω: over spec
 			reading('r4', '4', 0.61) // 0.51 Ω
@@ -128,11 +128,11 @@ describe('a job’s tests as the pages show them', () => {
 		expect(r1).toMatchObject({
 			position: '1',
 			rangeLabel: '200 Ω',
-			samples: ['0.62 Ω'],
+			samples: ['0.57 Ω'],
 			differ: false
 		});
-		expect(r1.phone).toMatchObject({ key: 'within', text: '0.52 Ω' });
-		expect(r1.workshop).toMatchObject({ key: 'within', text: '0.52 Ω' });
+		expect(r1.phone).toMatchObject({ key: 'within', text: '0.47 Ω' });
+		expect(r1.workshop).toMatchObject({ key: 'within', text: '0.47 Ω' });
 		expect(r2.phone).toMatchObject({ key: 'high', text: '0.6 Ω' });
 		expect(r2.workshop).toMatchObject({ key: 'within', text: '0.5 Ω' });
 		expect(r2.differ).toBe(true);
@@ -141,7 +141,7 @@ describe('a job’s tests as the pages show them', () => {
 	});
 
 	it('compares the cylinders on the workshop’s values and names the odd one out', () => {
-		// 0.52, 0.50, 0.85 and 0.51 Ω: cylinder 3 is more than 10 % from the median of the
+		// 0.47, 0.50, 0.85 and 0.51 Ω: cylinder 3 is more than 10 % from the median of the
 		// others, 0.51 Ω (the odd-one-out rule of DESIGN §4; 10 % is common practice).
 		expect(t.checks[0].comparison).toEqual({ kind: 'odd', odd: ['3'] });
 		expect(t.checks[0].byPosition['3']).toMatchObject({ verdict: 'high' });

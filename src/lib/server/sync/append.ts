@@ -17,7 +17,7 @@
  */
 import type { Transaction } from 'sequelize';
 import { bandsFor, evaluateReading, meterFor, rangeQuantityOf, sameResult, type CheckSpec, type TemperatureSnapshot, type VisualFinding } from '../../flow/reading';
-import { rangeResolves } from '../../flow/decisions';
+import { rangeResolves } from '../../flow/reading';
 import { readingCreate, signoffCreate, sparkTestCreate, swapTestCreate } from '../../schemas/records';
 import type { Op, PushResult, Reason } from '../../sync/protocol';
 import { stringifyNumbers } from '../../sync/json';
