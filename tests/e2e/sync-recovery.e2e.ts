@@ -16,19 +16,29 @@ import { QueryTypes, Sequelize } from 'sequelize';
 import { v7 as uuidv7 } from 'uuid';
 import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
 import type { Page, Route } from 'playwright-core';
-import { DEMO_PASSWORD, DEMO_USERS } from '../../src/lib/server/seed/demo';
+import { DEMO_PASSWORD, DEMO_USERS, DEMO_WORKSHOP } from '../../src/lib/server/seed/demo';
 import { Client } from '../helpers/http';
 import { openPhone, shot, signInAs, watch } from './browser';
 
 const base = inject('baseURL');
-const JOB_1001 = '019a0000-0000-7000-8000-000000000301'; // the demo technician's job
-const TECH = DEMO_USERS[2].email;
+// A technician and a job of their own in the demo workshop, so the 2,000 readings never
+// weigh on the demo technician's phone in the other end-to-end files.
+let JOB = '';
+const TECH = `recovery-${uuidv7().slice(-8)}@tallowbridge.example`;
 let phone: Awaited<ReturnType<typeof openPhone>>;
 let db: Sequelize;
 
 beforeAll(async () => {
 	const env = inject('dbEnv');
 	db = new Sequelize(env.DB_NAME, env.DB_USER, env.DB_PASSWORD, { host: env.DB_HOST, port: Number(env.DB_PORT), dialect: 'mariadb', logging: false });
+	Object.assign(process.env, env);
+	const { createUser } = await import('../../src/lib/server/services/workshops');
+	const { jobs } = await import('../../src/lib/server/services/jobs');
+	const { closeDb } = await import('../../src/lib/server/db');
+	const tech = await createUser(DEMO_WORKSHOP.id, { email: TECH, name: 'Recovery Technician', role: 'technician', password: DEMO_PASSWORD });
+	const job = await jobs.create({ userId: DEMO_USERS[1].id, workshopId: DEMO_WORKSHOP.id, role: 'lead', deviceId: 'e2e' }, { complaint: 'Flat battery after a night', assigneeId: tech.id });
+	JOB = job.id as string;
+	await closeDb();
 	phone = await openPhone();
 	await signInAs(phone, base, TECH);
 	await phone.page.waitForFunction(() => Boolean(navigator.serviceWorker.controller), null, { timeout: 20_000 });
@@ -43,12 +53,12 @@ afterAll(async () => {
 
 const badge = (page: Page = phone.page) => page.getByTestId('sync-badge');
 
-/** A test on job 1001 and `n` readings on it, queued in the phone's IndexedDB as `writeLocal` queues them. */
+/** A test on the job and `n` readings on it, queued in the phone's IndexedDB as `writeLocal` queues them. */
 async function queueReadings(page: Page, n: number) {
 	const now = new Date().toISOString();
 	const testId = uuidv7();
 	const op = (entity: string, entityId: string, fields: Record<string, unknown>) => ({ opId: uuidv7(), entity, entityId, kind: 'create', baseVersion: 0, fields, deviceTime: now });
-	const entries = [op('test', testId, { jobId: JOB_1001, position: '3', temperature: { mode: 'measured', tempC: 19 } })];
+	const entries = [op('test', testId, { jobId: JOB, position: '3', temperature: { mode: 'measured', tempC: 19 } })];
 	for (let i = 0; i < n; i++) entries.push(op('reading', uuidv7(), { testId, checkKey: 'primary', samples: [{ value: 0.4 + (i % 100) / 1000, unit: 'Ω' }] }));
 	await page.evaluate(
 		async ({ entries, jobId, now }) => {
@@ -69,7 +79,7 @@ async function queueReadings(page: Page, n: number) {
 			});
 			idb.close();
 		},
-		{ entries, jobId: JOB_1001, now }
+		{ entries, jobId: JOB, now }
 	);
 	return { testId, opIds: entries.map((e) => e.opId) };
 }

@@ -35,7 +35,9 @@ export async function makeWorld(): Promise<{ workshopId: string; users: PhoneUse
 	const lead = { userId: users[2].id, workshopId: w.id, role: 'lead' as const, deviceId: 'office' };
 	for (const u of users) {
 		for (let k = 1; k <= 2; k++) {
-			const job = await jobs.create(lead, { complaint: `Misfire ${k} for ${u.role}`, assigneeId: u.id });
+			// Jobs are assigned to technicians and apprentices; a lead's or owner's phone works on unassigned ones.
+			const assigneeId = u.role === 'technician' ? u.id : null;
+			const job = await jobs.create(lead, { complaint: `Misfire ${k} for ${u.role}`, assigneeId });
 			u.jobs.push(job.id as string);
 		}
 	}

@@ -1,5 +1,6 @@
 /** The product's words for the spec library (DESIGN §7): kinds, quantities, conditions, cautions. */
 import type { Caution, CheckCondition, CheckQuantity, ComponentKind } from '../schemas/component';
+import { temperatureRangeText } from './band-words';
 
 export const KIND_LABELS: Record<ComponentKind, string> = {
 	ignition_coil: 'Ignition coil',
@@ -57,12 +58,7 @@ export const COLD_HOT_SPLIT_C = 50;
 export const HOT_TOP_C = 100;
 
 /** A band's temperatures in words: "below 50 °C", "50–100 °C", "100 °C and above". */
-export function temperatureRangeText(b: { fromC: number | null; toC: number | null }): string {
-	if (b.fromC === null && b.toC === null) return 'any temperature';
-	if (b.fromC === null) return `below ${b.toC} °C`;
-	if (b.toC === null) return `${b.fromC} °C and above`;
-	return `${b.fromC}–${b.toC} °C`;
-}
+export { temperatureRangeText };
 
 /** A band's short name: "Cold spec", "Hot spec", or its temperatures. */
 export function bandShortName(b: { fromC: number | null; toC: number | null }): string {

@@ -6,7 +6,7 @@
  */
 import { z } from 'zod';
 import { normalizeUnit } from '../domain/units';
-import { temperatureRangeText } from '../library/labels';
+import { temperatureRangeText } from '../library/band-words';
 import {
 	optionalText,
 	pageParam,
