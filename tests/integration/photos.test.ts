@@ -38,7 +38,7 @@ const rows = (sql: string, ...replacements: unknown[]) =>
 /** An invented test picture: a grey field with a darker block, `w`×`h`, as JPEG. */
 const jpeg = (width = 1200, height = 900, shade = 120) =>
 	sharp({ create: { width, height, channels: 3, background: { r: shade, g: shade, b: shade } } })
-		.composite([{ input: { create: { width: 200, height: 100, channels: 3, background: '#202020' } }, left: 40, top: 40 }])
+		.composite([{ input: { create: { width: Math.floor(width / 3), height: Math.floor(height / 3), channels: 3, background: '#202020' } }, left: 4, top: 4 }])
 		.jpeg({ quality: 85 })
 		.toBuffer();
 
