@@ -373,3 +373,24 @@ export async function purgeRemovedPhotos(now = new Date(), days = PURGE_DAYS): P
 	}
 	return rows.length;
 }
+
+let cleanupTimer: ReturnType<typeof setInterval> | null = null;
+
+/**
+ * Run `purgeRemovedPhotos` in this process every `PHOTO_CLEANUP_MS` (an hour by default),
+ * when a photo store is configured. Several processes may run it at once: deleting an object
+ * twice is harmless, and each row is marked once.
+ */
+export function startPhotoCleanup() {
+	if (cleanupTimer || !process.env.S3_BUCKET) return;
+	const every = Number(process.env.PHOTO_CLEANUP_MS) || 3_600_000;
+	cleanupTimer = setInterval(() => {
+		purgeRemovedPhotos().catch((e) => console.error('photo cleanup:', (e as Error).message));
+	}, every);
+	cleanupTimer.unref();
+}
+
+export function stopPhotoCleanup() {
+	if (cleanupTimer) clearInterval(cleanupTimer);
+	cleanupTimer = null;
+}
