@@ -76,7 +76,15 @@ describe('evidence photos', () => {
 		const size = () => item.locator('img').evaluate((img: HTMLImageElement) => [img.naturalWidth, img.naturalHeight]);
 		await expect.poll(size).toEqual([1200, 1600]);
 		expect(await axeViolations(page)).toEqual([]);
+		await item.scrollIntoViewIfNeeded();
 		await shot(page, 'photos-1-kept-offline');
+		// A tap opens it full size; Close brings the job back.
+		await item.getByRole('button', { name: /at full size/ }).click();
+		const viewer = page.getByTestId('photo-viewer');
+		await expect.poll(() => viewer.locator('img').evaluate((img: HTMLImageElement) => img.naturalWidth)).toBe(1200);
+		expect(await axeViolations(page)).toEqual([]);
+		await viewer.getByRole('button', { name: 'Close' }).click();
+		await expect.poll(() => viewer.isVisible()).toBe(false);
 
 		const answer = await page.reload();
 		expect(answer?.fromServiceWorker(), 'the page came from the service worker').toBe(true);
@@ -107,6 +115,7 @@ describe('evidence photos', () => {
 		expect(meta.exif, 'no camera metadata (location) reaches the workshop').toBeUndefined();
 		expect(await axeViolations(desk.page)).toEqual([]);
 		expect(desk.errors).toEqual([]);
+		await photo.scrollIntoViewIfNeeded();
 		await shot(desk.page, 'photos-3-lead-desk');
 	});
 });

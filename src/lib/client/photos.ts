@@ -105,6 +105,7 @@ export async function removePhoto(db: LocalDb, photo: { id: string; jobId: strin
 export type PhotoView = {
 	id: string;
 	jobId: string;
+	testId: string | null;
 	caption: string | null;
 	/** Where the thumbnail comes from (a blob address on this phone, else the workshop). */
 	thumb: string;
@@ -133,6 +134,7 @@ export async function jobPhotoList(db: LocalDb, jobId: string): Promise<PhotoVie
 	const out: PhotoView[] = local.map((p) => ({
 		id: p.id,
 		jobId,
+		testId: p.testId,
 		caption: p.caption,
 		thumb: blobUrl(p),
 		full: blobUrl(p),
@@ -146,6 +148,7 @@ export async function jobPhotoList(db: LocalDb, jobId: string): Promise<PhotoVie
 		out.push({
 			id: r.id,
 			jobId,
+			testId: (r.data.testId as string | null) ?? null,
 			caption: (r.data.caption as string | null) ?? null,
 			thumb: `/api/photos/${r.id}/file`,
 			full: `/api/photos/${r.id}/file?size=full`,
