@@ -34,6 +34,10 @@ export function s3(): S3Client {
 	const e = process.env;
 	const key = [e.S3_ENDPOINT, e.S3_REGION, e.S3_ACCESS_KEY_ID, e.S3_FORCE_PATH_STYLE].join('|');
 	if (client && key === clientKey) return client;
+	// The pinned SDK runs on Node 20; its notice that later versions will need Node 22 would
+	// be the app's only output (the app prints nothing). Upgrading the SDK past January 2027
+	// means Node 22 first.
+	e.AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED ??= 'true';
 	client = new S3Client({
 		endpoint: e.S3_ENDPOINT || undefined,
 		region: e.S3_REGION || 'us-east-1',
