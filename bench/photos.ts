@@ -38,8 +38,8 @@ const sha = (b: Buffer) => createHash('sha256').update(b).digest('hex');
 
 /** An invented photo of about `MB` megabytes: noise, which JPEG cannot shrink much. */
 async function noisePhoto(): Promise<Buffer> {
-	// About 0.55 byte per pixel at quality 80 for noise (measured here); aim for MB.
-	const pixels = (MB * 1024 * 1024) / 1.7;
+	// About 0.62 byte per pixel at quality 80 for noise (measured here); aim for MB.
+	const pixels = (MB * 1024 * 1024) / 0.62;
 	const width = Math.round(Math.sqrt((pixels * 4) / 3));
 	const height = Math.round((width * 3) / 4);
 	return sharp(randomBytes(width * height * 3), { raw: { width, height, channels: 3 } }).jpeg({ quality: 80 }).toBuffer();

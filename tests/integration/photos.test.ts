@@ -15,7 +15,13 @@ import sharp from 'sharp';
 import { v7 as uuidv7 } from 'uuid';
 import { beforeAll, describe, expect, inject, it } from 'vitest';
 import { db } from '../../src/lib/server/db';
+import { execFileSync } from 'node:child_process';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
 import { customerPhotos, purgeRemovedPhotos } from '../../src/lib/server/photos/service';
+import { renderReportPdf } from '../../src/lib/server/reports/pdf';
+import { previewReport } from '../../src/lib/server/reports/service';
 import { getObject, headObject } from '../../src/lib/server/photos/storage';
 import { jobs } from '../../src/lib/server/services/jobs';
 import { makeWorkshop } from '../helpers/fixtures';
@@ -194,6 +200,20 @@ describe('marks and cleanup', () => {
 		expect(chosen.map((p) => p.id)).toEqual([ida]);
 		expect(chosen[0].caption).toBe('Burnt connector');
 		expect(chosen[0].src.startsWith('data:image/jpeg;base64,')).toBe(true);
+		// The customer report shows it: in the preview's words and as a picture in the PDF
+		// (read back with poppler's pdfimages and pdftotext, not with project code).
+		const { doc } = await previewReport(w.users.lead.actor, jobId);
+		expect(doc.photos.map((p) => [p.id, p.caption])).toEqual([[ida, 'Burnt connector']]);
+		const dir = mkdtempSync(path.join(tmpdir(), 'fieldbench-photos-'));
+		try {
+			const file = path.join(dir, 'report.pdf');
+			writeFileSync(file, await renderReportPdf(doc, { paper: 'a4' }));
+			const images = execFileSync('pdfimages', ['-list', file], { encoding: 'utf8' }).trim().split('\n').slice(2);
+			expect(images.length).toBe(1);
+			expect(execFileSync('pdftotext', [file, '-'], { encoding: 'utf8' })).toContain('Burnt connector');
+		} finally {
+			rmSync(dir, { recursive: true, force: true });
+		}
 
 		// Another workshop's lead does not find it.
 		await expectError(await as.otherLead.json('POST', `/api/photos/${idb}/marks`, { mark: 'removed' }), 404, 'not_found');
