@@ -91,6 +91,12 @@ describe('evidence photos', () => {
 		await expect.poll(() => item.getByTestId('photo-state').textContent(), { timeout: 15_000 }).toContain('Waiting to send');
 		expect(await item.textContent()).toContain('Melted fuse holder, slot 14');
 		await expect.poll(size).toEqual([1200, 1600]);
+		// The sync screen says a photo waits.
+		await badge().click();
+		await page.getByTestId('photos-waiting').waitFor();
+		expect(await page.getByTestId('photos-waiting').textContent()).toContain('1 photo waiting to send');
+		await page.goto(`${base}/field/job/${JOB}`);
+		await page.getByTestId('photo-item').waitFor();
 	});
 
 	it('sends it when the connection returns, and the lead sees it on the job', async () => {
