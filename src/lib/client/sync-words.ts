@@ -16,7 +16,8 @@ export const ENTITY_WORDS: Record<string, string> = {
 	signoff: 'Sign-off',
 	swap_test: 'Swap test',
 	photo: 'Photo',
-	spark_test: 'Spark test'
+	spark_test: 'Spark test',
+	quote: 'Quote'
 };
 
 export const KIND_WORDS: Record<string, string> = { create: 'new', patch: 'change', delete: 'removal' };
@@ -58,6 +59,10 @@ export const FIELD_WORDS: Record<string, string> = {
 	retestOf: 'the test it re-tests',
 	checks: 'checks',
 	source: 'source of the figures',
+	request: 'what is on the quote',
+	verbalName: 'customer who answered',
+	verbalHow: 'how the customer answered',
+	verbalDecision: 'customer’s answer',
 	description: 'description',
 	fitment: 'vehicles it fits',
 	cautions: 'cautions',
