@@ -3,12 +3,15 @@ import type { ChildProcess } from 'node:child_process';
 import type { TestProject } from 'vitest/node';
 import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../../scripts/lib/app';
 import { mailEnv, startMailServer, stopMailServer } from '../../scripts/lib/mail';
+import { payEnv, startPayServer, stopPayServer } from '../../scripts/lib/pay';
 import { finish, freshDatabase } from '../helpers/database';
 
 let created: Awaited<ReturnType<typeof freshDatabase>> | null = null;
 let child: ChildProcess | null = null;
 /** This runner's own fake mail server (its messages in .data/mail/<name>/). */
 const MAIL_NAME = `integration-${process.pid}`;
+/** This runner's own fake payment provider. */
+const PAY_NAME = `integration-${process.pid}`;
 /** E-mail looked at often and retried soon, so the tests do not wait long. */
 const FAST_MAIL = { MAIL_POLL_MS: '500', MAIL_RETRY_BASE_MS: '300', MAIL_MAX_ATTEMPTS: '8' };
 
@@ -20,9 +23,12 @@ export async function setup(project: TestProject) {
 	buildIfNeeded();
 	const mail = await startMailServer(MAIL_NAME);
 	project.provide('mail', { name: MAIL_NAME, port: mail.port, dir: mail.dir });
+	const port = await freePort(4200);
+	const pay = await startPayServer(PAY_NAME, `http://127.0.0.1:${port}/api/pay/webhook`);
+	project.provide('payURL', pay.url);
 	const s = await serve(
-		await freePort(4200),
-		{ ...db.env, ...mailEnv(mail.port, mail.dir), ...FAST_MAIL, ADDRESS_HEADER: 'x-forwarded-for' },
+		port,
+		{ ...db.env, ...mailEnv(mail.port, mail.dir), ...payEnv(pay.url), ...FAST_MAIL, ADDRESS_HEADER: 'x-forwarded-for' },
 		'ignore'
 	);
 	child = s.child;
@@ -33,6 +39,7 @@ export async function setup(project: TestProject) {
 export async function teardown() {
 	if (child) stopServe(child);
 	await stopMailServer(MAIL_NAME, true);
+	await stopPayServer(PAY_NAME);
 	await finish(created);
 }
 
@@ -41,5 +48,6 @@ declare module 'vitest' {
 		dbEnv: Record<string, string>;
 		baseURL: string;
 		mail: { name: string; port: number; dir: string };
+		payURL: string;
 	}
 }
