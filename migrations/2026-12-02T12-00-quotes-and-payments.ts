@@ -58,7 +58,7 @@ const UP = [
 		workshop_id UUID NOT NULL,
 		job_id UUID NOT NULL,
 		request LONGTEXT NOT NULL,
-		lines LONGTEXT NULL,
+		priced_lines LONGTEXT NULL,
 		currency CHAR(3) NULL,
 		tax_rate_bp INT NULL,
 		net_minor BIGINT NULL,

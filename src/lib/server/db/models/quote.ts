@@ -46,7 +46,7 @@ export function initQuote(s: Sequelize, syncAttrs: () => Record<string, object>)
 			...syncAttrs(),
 			jobId: { type: DataTypes.UUID, allowNull: false },
 			request: jsonText('request'),
-			lines: jsonText('lines'),
+			lines: { ...jsonText('lines'), field: 'priced_lines' },
 			currency: { type: DataTypes.CHAR(3), allowNull: true },
 			taxRateBp: { type: DataTypes.INTEGER, allowNull: true },
 			netMinor: money('netMinor'),
