@@ -40,7 +40,7 @@ const GOOD = '4242 4242 4242 4242';
 const DECLINED = '4000 0000 0000 0002';
 
 async function technicianJob(w: Ws = ws) {
-	return jobs.create(w.users.lead.actor, { complaint: 'Misfire under load', assigneeId: w.users.technician.id, status: 'testing' });
+	return (await jobs.create(w.users.lead.actor, { complaint: 'Misfire under load', assigneeId: w.users.technician.id, status: 'testing' })) as { id: string };
 }
 
 /** A quote made by the technician's phone: the coil, 0.5 h fitting, the diagnostic fee. */

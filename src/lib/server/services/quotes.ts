@@ -42,7 +42,7 @@ export const QUOTE_FIELDS = [
 
 type Row = { id: string; version: number; deletedAt: Date | null; get: (k: string) => unknown };
 
-export const quoteRecord = (r: Row) => ({
+export const quoteRecord = (r: Row): Record<string, unknown> & { id: string; version: number } => ({
 	id: r.id,
 	version: r.version,
 	...Object.fromEntries(QUOTE_FIELDS.map((f) => [f, r.get(f) ?? null])),
