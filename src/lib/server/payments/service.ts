@@ -359,3 +359,35 @@ export async function paymentTotals(workshopId: string) {
 	});
 	return { paid: paid.map(fmt), outstanding: outstanding.map(fmt) };
 }
+
+/** The workshop's latest payments for the desk's list (newest first, one page). */
+export async function listPayments(actor: Actor, page = 1, pageSize = 25) {
+	if (!isLead(actor)) throw new ForbiddenError('Only a workshop lead sees every payment');
+	const offset = (Math.max(1, page) - 1) * pageSize;
+	const rows = await db().query<Record<string, unknown>>(
+		`SELECT p.id, p.job_id, j.number, p.purpose, p.method, p.state, p.amount_minor, p.currency, p.created_at, p.paid_at, u.name AS by_name
+		 FROM payments p JOIN jobs j ON j.id = p.job_id LEFT JOIN users u ON u.id = p.created_by
+		 WHERE p.workshop_id = ? ORDER BY p.created_at DESC LIMIT ? OFFSET ?`,
+		{ replacements: [actor.workshopId, pageSize, offset], type: QueryTypes.SELECT }
+	);
+	const [{ n }] = await db().query<{ n: number }>('SELECT COUNT(*) AS n FROM payments WHERE workshop_id = ?', {
+		replacements: [actor.workshopId],
+		type: QueryTypes.SELECT
+	});
+	return {
+		total: Number(n),
+		page,
+		pageSize,
+		items: rows.map((r) => ({
+			id: r.id as string,
+			jobId: r.job_id as string,
+			jobNumber: Number(r.number),
+			purpose: r.purpose as Purpose,
+			method: r.method as Method,
+			state: r.state as PaymentState,
+			amount: formatMoney(Number(r.amount_minor), r.currency as Currency),
+			at: new Date(r.created_at as string),
+			by: (r.by_name as string | null) ?? 'The customer, on their link'
+		}))
+	};
+}
