@@ -3,10 +3,9 @@
  * offline (the server prices them again when they arrive). Any signed-in member.
  */
 import { api } from '$lib/server/api';
-import { requireUser } from '$lib/server/auth/guards';
 import { listPriceItems, readPricing } from '$lib/server/quotes/pricing';
 
-export const GET = api(async ({ locals }) => {
-	const user = requireUser(locals);
-	return Response.json({ pricing: await readPricing(user.workshopId), items: await listPriceItems(user.workshopId) });
-});
+export const GET = api(async (_event, user) => ({
+	pricing: await readPricing(user.workshopId),
+	items: await listPriceItems(user.workshopId)
+}));
