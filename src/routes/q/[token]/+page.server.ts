@@ -1,4 +1,4 @@
-import { error, fail, redirect } from '@sveltejs/kit';
+import { error, fail } from '@sveltejs/kit';
 import { AppError, ValidationError } from '$lib/server/errors';
 import { answerQuoteLink, openQuoteLink } from '$lib/server/quotes/links';
 import { askCardPaymentForQuote, PaymentsOffError } from '$lib/server/payments/service';
@@ -45,7 +45,6 @@ export const actions = {
 		}
 	},
 	pay: async ({ params, url }) => {
-		let to: string;
 		try {
 			const q = await openQuoteLink(params.token);
 			const r = await askCardPaymentForQuote(q.workshopId, q.quoteId, {
@@ -53,12 +52,12 @@ export const actions = {
 				cancelUrl: `${url.origin}/q/${params.token}`
 			});
 			if (r.paid) return { message: 'This quote is already paid. Thank you.' };
-			to = r.url;
+			// A link, not a redirect: the page's form-action policy keeps forms on this site.
+			return { payUrl: r.url };
 		} catch (e) {
 			if (e instanceof PaymentsOffError) return fail(503, { message: e.message });
 			if (e instanceof AppError && e.status < 500) return fail(e.status, { message: e.message });
 			throw e;
 		}
-		redirect(303, to);
 	}
 };
