@@ -75,6 +75,7 @@ export async function amountDue(workshopId: string, job: Job, purpose: Purpose, 
 }
 
 async function jobFor(actor: Actor, jobId: string, t?: Transaction) {
+	if (!z.uuid().safeParse(jobId).success) throw new NotFoundError('Job');
 	const job = await Job.findOne({ where: { id: jobId, workshopId: actor.workshopId, deletedAt: null }, transaction: t });
 	if (!job || !seesJob(actor, job)) throw new NotFoundError('Job');
 	return job;
@@ -109,7 +110,9 @@ async function insertPayment(
  */
 export async function askCardPayment(actor: Actor, jobId: string, purposeInput: unknown, urls: { successUrl: string; cancelUrl: string }) {
 	if (!paymentsConfigured()) throw new PaymentsOffError();
-	const purpose = purposeSchema.parse(purposeInput) as Purpose;
+	const parsed = purposeSchema.safeParse(purposeInput);
+	if (!parsed.success) throw new ValidationError({ purpose: 'Choose what the payment is for' });
+	const purpose = parsed.data as Purpose;
 	const job = await jobFor(actor, jobId);
 	const due = await amountDue(actor.workshopId, job, purpose);
 	const id = uuidv7();
@@ -212,6 +215,7 @@ async function moveState(t: Transaction, actor: Actor, p: PaymentRow, to: Paymen
 /** Refund a paid payment in full (leads and owners): card through the provider, cash and transfers recorded. */
 export async function refundPayment(actor: Actor, paymentId: string) {
 	if (!isLead(actor)) throw new ForbiddenError('Only a workshop lead can refund a payment');
+	if (!z.uuid().safeParse(paymentId).success) throw new NotFoundError('Payment');
 	const p = await db().transaction(async (t) => {
 		const row = await lockPayment(t, 'id = ? AND workshop_id = ?', [paymentId, actor.workshopId]);
 		if (!row) throw new NotFoundError('Payment');

@@ -115,6 +115,7 @@ export type MadeLink = { url: string; token: string; expiresAt: Date; emailed: b
  * consent; otherwise `emailBlock` says why not (the link still works, e.g. as a QR code).
  */
 export async function makeQuoteLink(actor: Actor, quoteId: string, baseUrl: string, opts: { email?: boolean } = {}, now = new Date()): Promise<MadeLink> {
+	if (!z.uuid().safeParse(quoteId).success) throw new NotFoundError('Quote');
 	return db().transaction(async (t) => {
 		const q = await Quote.findOne({ where: { id: quoteId, workshopId: actor.workshopId, deletedAt: { [Op.is]: null } }, transaction: t, lock: t.LOCK.UPDATE });
 		if (!q) throw new NotFoundError('Quote');

@@ -128,6 +128,7 @@ export async function addPriceItem(actor: Actor, input: unknown): Promise<string
 /** Take an item off the price list (quotes that used it keep their priced lines). */
 export async function removePriceItem(actor: Actor, id: string): Promise<void> {
 	leadsOnly(actor);
+	if (!/^[0-9a-f-]{36}$/i.test(id)) throw new NotFoundError('Price');
 	await db().transaction(async (t) => {
 		const [, meta] = (await db().query(
 			'UPDATE price_items SET active = 0, updated_at = UTC_TIMESTAMP(3) WHERE id = ? AND workshop_id = ? AND active = 1',

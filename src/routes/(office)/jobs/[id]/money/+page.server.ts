@@ -44,6 +44,7 @@ export const actions = {
 		const actor = actorOf(guardPage(event));
 		const fd = await event.request.formData();
 		try {
+			if (!z.uuid().safeParse(String(fd.get('quoteId') ?? '')).success) throw new NotFoundError('Quote');
 			await quotes.update(actor, String(fd.get('quoteId') ?? ''), Number(fd.get('baseVersion')), {
 				verbalDecision: fd.get('decision') === 'declined' ? 'declined' : 'approved',
 				verbalName: String(fd.get('verbalName') ?? ''),
