@@ -23,13 +23,14 @@ const issuePath = (r: { success: boolean; error?: { issues: { path: PropertyKey[
 	r.error ? formatZodPath(r.error.issues[0].path) : null;
 
 describe('entities', () => {
-	it('lists exactly the six mutable and five append-only entities', () => {
+	it('lists exactly the seven mutable and five append-only entities', () => {
 		expect([...ENTITIES].sort()).toEqual(
 			[
 				'component',
 				'customer',
 				'job',
 				'photo',
+				'quote',
 				'reading',
 				'sheet',
 				'signoff',
