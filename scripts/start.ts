@@ -34,7 +34,7 @@ const appPort = await freePort(wantedPort);
 if (appPort !== wantedPort) console.log(`Port ${wantedPort} is taken; the app uses ${appPort}.`);
 // The local fake payment provider takes card payments unless a real key is configured.
 const pay = process.env.STRIPE_SECRET_KEY ? null : await startPayServer('fieldbench', `http://127.0.0.1:${appPort}/api/pay/webhook`);
-if (pay) console.log(`Fake payment provider on ${pay.url}: test card 4242 4242 4242 4242 pays, 4000 0000 0000 0002 is declined`);
+if (pay) console.log(`Fake payment provider on 127.0.0.1:${pay.port}: test card 4242 4242 4242 4242 pays, 4000 0000 0000 0002 is declined`);
 const { child, url } = await serve(appPort, {
 	...dbEnv(dbPort, name),
 	...(mail ? mailEnv(mail.port, mail.dir) : {}),
