@@ -4,6 +4,7 @@ import type { TestProject } from 'vitest/node';
 import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../../scripts/lib/app';
 import { mailEnv, startMailServer, stopMailServer } from '../../scripts/lib/mail';
 import { payEnv, startPayServer, stopPayServer } from '../../scripts/lib/pay';
+import { s3Env, startS3Server, stopS3Server } from '../../scripts/lib/s3';
 import { finish, freshDatabase } from '../helpers/database';
 
 let created: Awaited<ReturnType<typeof freshDatabase>> | null = null;
@@ -12,6 +13,8 @@ let child: ChildProcess | null = null;
 const MAIL_NAME = `integration-${process.pid}`;
 /** This runner's own fake payment provider. */
 const PAY_NAME = `integration-${process.pid}`;
+/** This runner's own fake photo store (its objects in .data/s3/<name>/). */
+const S3_NAME = `integration-${process.pid}`;
 /** E-mail looked at often and retried soon, so the tests do not wait long. */
 const FAST_MAIL = { MAIL_POLL_MS: '500', MAIL_RETRY_BASE_MS: '300', MAIL_MAX_ATTEMPTS: '8' };
 
@@ -23,12 +26,16 @@ export async function setup(project: TestProject) {
 	buildIfNeeded();
 	const mail = await startMailServer(MAIL_NAME);
 	project.provide('mail', { name: MAIL_NAME, port: mail.port, dir: mail.dir });
+	const store = await startS3Server(S3_NAME);
+	// Download addresses that expire soon, so the expiry test does not wait long.
+	const photos = { ...s3Env(store.port), PHOTO_URL_SECONDS: '2' };
+	project.provide('s3Env', photos);
 	const port = await freePort(4200);
 	const pay = await startPayServer(PAY_NAME, `http://127.0.0.1:${port}/api/pay/webhook`);
 	project.provide('payURL', pay.url);
 	const s = await serve(
 		port,
-		{ ...db.env, ...mailEnv(mail.port, mail.dir), ...payEnv(pay.url), ...FAST_MAIL, ADDRESS_HEADER: 'x-forwarded-for' },
+		{ ...db.env, ...mailEnv(mail.port, mail.dir), ...FAST_MAIL, ...photos, ...payEnv(pay.url), ADDRESS_HEADER: 'x-forwarded-for' },
 		'ignore'
 	);
 	child = s.child;
@@ -40,6 +47,7 @@ export async function teardown() {
 	if (child) stopServe(child);
 	await stopMailServer(MAIL_NAME, true);
 	await stopPayServer(PAY_NAME);
+	await stopS3Server(S3_NAME, true);
 	await finish(created);
 }
 
@@ -49,5 +57,6 @@ declare module 'vitest' {
 		baseURL: string;
 		mail: { name: string; port: number; dir: string };
 		payURL: string;
+		s3Env: Record<string, string>;
 	}
 }

@@ -23,13 +23,14 @@ const issuePath = (r: { success: boolean; error?: { issues: { path: PropertyKey[
 	r.error ? formatZodPath(r.error.issues[0].path) : null;
 
 describe('entities', () => {
-	it('lists exactly the seven mutable and five append-only entities', () => {
+	it('lists exactly the seven mutable and six append-only entities', () => {
 		expect([...ENTITIES].sort()).toEqual(
 			[
 				'component',
 				'customer',
 				'job',
 				'photo',
+				'photo_mark',
 				'quote',
 				'reading',
 				'sheet',
@@ -42,7 +43,7 @@ describe('entities', () => {
 		);
 	});
 
-	it.each(['reading', 'signoff', 'swap_test', 'photo', 'spark_test'] as Entity[])(
+	it.each(['reading', 'signoff', 'swap_test', 'photo', 'spark_test', 'photo_mark'] as Entity[])(
 		'treats %s as append-only',
 		(entity) => expect(isAppendOnly(entity)).toBe(true)
 	);

@@ -17,6 +17,8 @@ import { refuseRetestedOk, refuseClose } from '$lib/rules';
 import { isLead } from '$lib/roles';
 import { jobFormOptions } from '../../options.server';
 import { jobMoney } from '$lib/server/quotes/job-money';
+import { jobPhotos, markPhoto } from '$lib/server/photos/service';
+import { User } from '$lib/server/db/models';
 
 const listOf = (fd: FormData): CodeList => (fd.get('list') === 'after' ? 'after' : 'before');
 
@@ -29,16 +31,20 @@ export async function load(event) {
 		if (e instanceof NotFoundError) error(404, 'No such job, or it is not assigned to you');
 		throw e;
 	});
-	const [history, tests, facts] = await Promise.all([
+	const [history, tests, facts, photos, people] = await Promise.all([
 		jobs.statusHistory(actor, id),
 		jobTests(actor, id),
-		loadJobFacts(actor, id)
+		loadJobFacts(actor, id),
+		jobPhotos(actor, id),
+		User.findAll({ where: { workshopId: actor.workshopId }, attributes: ['id', 'name'] })
 	]);
 	return {
 		title: `Job ${job.number}`,
 		job,
 		history,
 		tests,
+		photos,
+		people: Object.fromEntries(people.map((u) => [u.id, u.name])),
 		next: NEXT_STATUS[job.status],
 		/** What the work must still show before these moves (null: nothing missing). */
 		missing: { retested_ok: refuseRetestedOk(facts), closed: refuseClose(facts) },
@@ -113,6 +119,16 @@ export const actions = {
 			return failFrom(e, valuesOf(fd), action);
 		}
 		return { action, saved: true };
+	},
+	photoMark: async (event) => {
+		const actor = actorOf(guardPage(event));
+		const fd = await event.request.formData();
+		try {
+			await markPhoto(actor, String(fd.get('photoId') ?? ''), { mark: fd.get('mark') ?? undefined });
+		} catch (e) {
+			return failFrom(e, valuesOf(fd), 'photoMark');
+		}
+		return { action: 'photoMark', saved: true };
 	},
 	withdrawReport: async (event) => {
 		const actor = actorOf(guardPage(event));
