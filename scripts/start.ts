@@ -6,6 +6,7 @@
  */
 import { buildIfNeeded, freePort, migrate, serve } from './lib/app';
 import { mailEnv, startMailServer, stopMailServer } from './lib/mail';
+import { payEnv, startPayServer, stopPayServer } from './lib/pay';
 import { dbEnv, ensureDatabase, startServer } from './lib/mariadb';
 import { s3Env, startS3Server, stopS3Server } from './lib/s3';
 
@@ -36,9 +37,13 @@ buildIfNeeded();
 const wantedPort = Number(process.env.PORT ?? 3000);
 const appPort = await freePort(wantedPort);
 if (appPort !== wantedPort) console.log(`Port ${wantedPort} is taken; the app uses ${appPort}.`);
+// The local fake payment provider takes card payments unless a real key is configured.
+const pay = process.env.STRIPE_SECRET_KEY ? null : await startPayServer('fieldbench', `http://127.0.0.1:${appPort}/api/pay/webhook`);
+if (pay) console.log(`Fake payment provider on 127.0.0.1:${pay.port}: test card 4242 4242 4242 4242 pays, 4000 0000 0000 0002 is declined`);
 const { child, url } = await serve(appPort, {
 	...dbEnv(dbPort, name),
 	...(mail ? mailEnv(mail.port, mail.dir) : {}),
+	...(pay ? payEnv(pay.url) : {}),
 	...(store ? s3Env(store.port) : {})
 });
 // The address comes once, on the last line; the app processes print nothing.
@@ -49,6 +54,7 @@ for (const sig of ['SIGINT', 'SIGTERM'] as const) {
 	process.on(sig, async () => {
 		if (child.pid) process.kill(-child.pid, sig);
 		if (mail?.started) await stopMailServer();
+		if (pay?.started) await stopPayServer('fieldbench');
 		if (store?.started) await stopS3Server();
 		process.exit(0);
 	});

@@ -16,6 +16,7 @@ export type NavIconName =
 	| 'signoffs'
 	| 'overview'
 	| 'team'
+	| 'payments'
 	| 'home'
 	| 'more'
 	| 'sign-out';
@@ -57,7 +58,8 @@ export const NAV: readonly NavEntry[] = [
 	{ label: 'Clashes', href: '/conflicts', roles: LEADS, icon: 'clashes', count: 'clashes', requires: 'lead-desk' },
 	{ label: 'Sign-offs', href: '/signoffs', roles: LEADS, icon: 'signoffs', count: 'signoffs', requires: 'lead-desk' },
 	{ label: 'Overview', href: '/overview', roles: LEADS, icon: 'overview', requires: 'lead-desk' },
-	{ label: 'Team', href: '/team', roles: LEADS, icon: 'team' }
+	{ label: 'Team', href: '/team', roles: LEADS, icon: 'team' },
+	{ label: 'Payments', href: '/payments', roles: LEADS, icon: 'payments' }
 ];
 
 /** How many entries the phone's bottom bar shows before the rest go under "More". */

@@ -3,12 +3,15 @@ import type { ChildProcess } from 'node:child_process';
 import type { TestProject } from 'vitest/node';
 import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../../scripts/lib/app';
 import { mailEnv, startMailServer, stopMailServer } from '../../scripts/lib/mail';
+import { payEnv, startPayServer, stopPayServer } from '../../scripts/lib/pay';
 import { s3Env, startS3Server, stopS3Server } from '../../scripts/lib/s3';
 import { finish, freshDatabase } from '../helpers/database';
 
 let child: ChildProcess | null = null;
 /** This runner's own fake mail server (its messages in .data/mail/<name>/). */
 const MAIL_NAME = `e2e-${process.pid}`;
+/** This runner's own fake payment provider. */
+const PAY_NAME = `e2e-${process.pid}`;
 /** This runner's own fake photo store (its objects in .data/s3/<name>/). */
 const S3_NAME = `e2e-${process.pid}`;
 /** E-mail looked at often and retried soon, so the tests do not wait long. */
@@ -28,7 +31,9 @@ export async function setup(project: TestProject) {
 	const mail = await startMailServer(MAIL_NAME);
 	project.provide('mail', { name: MAIL_NAME, port: mail.port, dir: mail.dir });
 	const store = await startS3Server(S3_NAME);
-	const s = await serve(await freePort(4300), { ...db.env, ...mailEnv(mail.port, mail.dir), ...FAST_MAIL, ...s3Env(store.port) }, 'ignore');
+	const port = await freePort(4300);
+	const pay = await startPayServer(PAY_NAME, `http://127.0.0.1:${port}/api/pay/webhook`);
+	const s = await serve(port, { ...db.env, ...mailEnv(mail.port, mail.dir), ...FAST_MAIL, ...s3Env(store.port), ...payEnv(pay.url) }, 'ignore');
 	child = s.child;
 	project.provide('baseURL', s.url);
 	project.provide('dbEnv', db.env);
@@ -37,6 +42,7 @@ export async function setup(project: TestProject) {
 export async function teardown() {
 	if (child) stopServe(child);
 	await stopMailServer(MAIL_NAME, true);
+	await stopPayServer(PAY_NAME);
 	await stopS3Server(S3_NAME, true);
 	await finish(created);
 }

@@ -3,6 +3,7 @@ import type { ChildProcess } from 'node:child_process';
 import type { TestProject } from 'vitest/node';
 import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../../scripts/lib/app';
 import { mailEnv, startMailServer, stopMailServer } from '../../scripts/lib/mail';
+import { payEnv, startPayServer, stopPayServer } from '../../scripts/lib/pay';
 import { s3Env, startS3Server, stopS3Server } from '../../scripts/lib/s3';
 import { finish, freshDatabase } from '../helpers/database';
 
@@ -10,6 +11,8 @@ let created: Awaited<ReturnType<typeof freshDatabase>> | null = null;
 let child: ChildProcess | null = null;
 /** This runner's own fake mail server (its messages in .data/mail/<name>/). */
 const MAIL_NAME = `integration-${process.pid}`;
+/** This runner's own fake payment provider. */
+const PAY_NAME = `integration-${process.pid}`;
 /** This runner's own fake photo store (its objects in .data/s3/<name>/). */
 const S3_NAME = `integration-${process.pid}`;
 /** E-mail looked at often and retried soon, so the tests do not wait long. */
@@ -27,9 +30,12 @@ export async function setup(project: TestProject) {
 	// Download addresses that expire soon, so the expiry test does not wait long.
 	const photos = { ...s3Env(store.port), PHOTO_URL_SECONDS: '2' };
 	project.provide('s3Env', photos);
+	const port = await freePort(4200);
+	const pay = await startPayServer(PAY_NAME, `http://127.0.0.1:${port}/api/pay/webhook`);
+	project.provide('payURL', pay.url);
 	const s = await serve(
-		await freePort(4200),
-		{ ...db.env, ...mailEnv(mail.port, mail.dir), ...FAST_MAIL, ...photos, ADDRESS_HEADER: 'x-forwarded-for' },
+		port,
+		{ ...db.env, ...mailEnv(mail.port, mail.dir), ...FAST_MAIL, ...photos, ...payEnv(pay.url), ADDRESS_HEADER: 'x-forwarded-for' },
 		'ignore'
 	);
 	child = s.child;
@@ -40,6 +46,7 @@ export async function setup(project: TestProject) {
 export async function teardown() {
 	if (child) stopServe(child);
 	await stopMailServer(MAIL_NAME, true);
+	await stopPayServer(PAY_NAME);
 	await stopS3Server(S3_NAME, true);
 	await finish(created);
 }
@@ -49,6 +56,7 @@ declare module 'vitest' {
 		dbEnv: Record<string, string>;
 		baseURL: string;
 		mail: { name: string; port: number; dir: string };
+		payURL: string;
 		s3Env: Record<string, string>;
 	}
 }

@@ -20,6 +20,8 @@ import { db } from '../../src/lib/server/db';
 import { components, sheets } from '../../src/lib/server/services/components';
 import * as customers from '../../src/lib/server/services/customers';
 import { jobs } from '../../src/lib/server/services/jobs';
+import { savePricing } from '../../src/lib/server/quotes/pricing';
+import { answerQuote, quotes } from '../../src/lib/server/services/quotes';
 import { tests } from '../../src/lib/server/services/tests';
 import { vehicles } from '../../src/lib/server/services/vehicles';
 import { uploadPhoto } from '../../src/lib/server/photos/service';
@@ -410,6 +412,34 @@ const ACTIONS: Action[] = [
 		})
 	),
 
+	// ——— Quotes (priced by the server; the workshop's prices are set in beforeAll) ———
+	{
+		name: 'make a quote on one’s own job',
+		allowed: EVERYONE,
+		setup: async (r) => ({ job: await job(ownWorker(r).id), id: uuidv7() }),
+		sync: (t) => create('quote', { jobId: t.job.id, request: { diagnostic: true } }, t.id),
+		landed: async (t) => !!(await rowOf('quotes', t.id))
+	},
+	{
+		name: 'make a quote on someone else’s job',
+		allowed: LEADS,
+		setup: async (r) => ({ job: await job(otherWorker(r).id), id: uuidv7() }),
+		sync: (t) => create('quote', { jobId: t.job.id, request: { diagnostic: true } }, t.id),
+		landed: async (t) => !!(await rowOf('quotes', t.id))
+	},
+	{
+		name: 'remove a quote of one’s own job the customer answered',
+		allowed: LEADS,
+		setup: async (r) => {
+			const j = await job(ownWorker(r).id);
+			const q = (await quotes.create(leadA, { jobId: j.id, request: { diagnostic: true } })) as T;
+			await db().transaction((t) => answerQuote(leadA, q.id, 'approved', { name: 'Rulebook Customer', via: 'verbal', by: leadA.userId }, t));
+			return (await quotes.read(leadA, q.id)) as T;
+		},
+		sync: (t) => op('quote', 'delete', t.id, {}, t.version),
+		landed: async (t) => (await rowOf('quotes', t.id)).deleted_at !== null
+	},
+
 	// ——— Photo marks (remove; for the customer): the person who took it, or a lead ———
 	{
 		name: 'remove a photo one took oneself',
@@ -701,6 +731,7 @@ beforeAll(async () => {
 	client.signedOut = new Client(inject('baseURL'), '10.9.9.9');
 	componentId = ((await components.create(leadA, { partNumber: `RB-COIL-${uuidv7().slice(-6)}`, kind: 'ignition_coil' })) as T).id;
 	sheetId = (await approved()).id;
+	await savePricing(leadA, { currency: 'GBP', taxRateBp: 2000, labourRateMinor: 6000, diagnosticFeeMinor: 4000 });
 	const van = (await vehicles.create(leadA, { make: 'Volta', model: 'Hauler', chassisNo: 'VH-9', chassisReason: 'Prototype', hybrid: true })) as T;
 	hybridVan = van.id;
 	plainCar = ((await vehicles.create(leadA, { make: 'Norvik', model: 'Tessa', chassisNo: 'NV-2', chassisReason: 'Imported before VINs' })) as T).id;

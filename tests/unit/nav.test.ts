@@ -20,7 +20,8 @@ describe('who sees which place', () => {
 			'/conflicts',
 			'/signoffs',
 			'/overview',
-			'/team'
+			'/team',
+			'/payments'
 		]);
 	});
 
@@ -37,7 +38,8 @@ describe('who sees which place', () => {
 			'/customers',
 			'/vehicles',
 			'/library',
-			'/team'
+			'/team',
+			'/payments'
 		]);
 	});
 
@@ -85,7 +87,7 @@ describe('the phone’s bottom bar', () => {
 	it('shows the first four places and puts the rest under More', () => {
 		const { bar, more } = splitForPhone(navFor('lead', ALL_ON));
 		expect(hrefs(bar)).toEqual(['/jobs', '/customers', '/vehicles', '/library']);
-		expect(hrefs(more)).toEqual(['/conflicts', '/signoffs', '/overview', '/team']);
+		expect(hrefs(more)).toEqual(['/conflicts', '/signoffs', '/overview', '/team', '/payments']);
 	});
 
 	it('gives a technician every place in the bar', () => {

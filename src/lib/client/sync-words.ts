@@ -17,7 +17,8 @@ export const ENTITY_WORDS: Record<string, string> = {
 	swap_test: 'Swap test',
 	photo: 'Photo',
 	photo_mark: 'Photo removal or choice',
-	spark_test: 'Spark test'
+	spark_test: 'Spark test',
+	quote: 'Quote'
 };
 
 export const KIND_WORDS: Record<string, string> = { create: 'new', patch: 'change', delete: 'removal' };
@@ -59,6 +60,10 @@ export const FIELD_WORDS: Record<string, string> = {
 	retestOf: 'the test it re-tests',
 	checks: 'checks',
 	source: 'source of the figures',
+	request: 'what is on the quote',
+	verbalName: 'customer who answered',
+	verbalHow: 'how the customer answered',
+	verbalDecision: 'customer’s answer',
 	description: 'description',
 	fitment: 'vehicles it fits',
 	cautions: 'cautions',

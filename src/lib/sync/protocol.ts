@@ -13,7 +13,8 @@ export const MUTABLE_ENTITIES = [
 	'job',
 	'test',
 	'component',
-	'sheet'
+	'sheet',
+	'quote'
 ] as const;
 /** Entities that accept only `create`: once written they are kept as they are. */
 export const APPEND_ONLY = [

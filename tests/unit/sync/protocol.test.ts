@@ -23,7 +23,7 @@ const issuePath = (r: { success: boolean; error?: { issues: { path: PropertyKey[
 	r.error ? formatZodPath(r.error.issues[0].path) : null;
 
 describe('entities', () => {
-	it('lists exactly the six mutable and six append-only entities', () => {
+	it('lists exactly the seven mutable and six append-only entities', () => {
 		expect([...ENTITIES].sort()).toEqual(
 			[
 				'component',
@@ -31,6 +31,7 @@ describe('entities', () => {
 				'job',
 				'photo',
 				'photo_mark',
+				'quote',
 				'reading',
 				'sheet',
 				'signoff',

@@ -13,6 +13,7 @@ import { jobs } from '../services/jobs';
 import { vehicles } from '../services/vehicles';
 import { createUser, createWorkshop } from '../services/workshops';
 import { DEMO_TEST_ID, seedDemoTest } from './demo-tests';
+import { seedDemoPricing } from './demo-pricing';
 import { readReportSettings, saveReportSettings } from '../reports/settings';
 
 export const DEMO_PASSWORD = 'bench-demo-2026';
@@ -349,5 +350,6 @@ export async function seedDemo(): Promise<number> {
 		await seedDemoTest(tech, { jobId: JOBS[0].id, componentId: COIL.id, sheetId: COIL_SHEET.id });
 		made++;
 	}
+	made += await seedDemoPricing(lead);
 	return made;
 }

@@ -332,3 +332,31 @@ export function refuseAppend(
 			: refuseHybridWork(actor, job.hybrid);
 	return why ? { reason: 'forbidden', message: why } : null;
 }
+
+/**
+ * Quotes. Whoever may work on the job makes its quote (a technician on their own job, a lead
+ * on any) and changes what is on it while the customer has not answered; a verbal answer is
+ * recorded once, with the customer's name; only a lead removes a quote the customer answered.
+ */
+export const quoteRules: Rules = {
+	async authorize({ actor, kind, row, changed, t }) {
+		const { job } = await seenJob(actor, row ? row.jobId : changed.jobId, t);
+		if (kind === 'create' && job.status === 'closed') throw new ForbiddenError('The job is closed');
+		if (!row) return;
+		const answered = ['approved', 'declined'].includes(row.state as string);
+		if (kind === 'delete') {
+			if (answered) leadsOnly(actor, 'Only a workshop lead can remove a quote the customer answered');
+			return;
+		}
+		if ('request' in changed && (answered || row.state === 'replaced'))
+			throw new ForbiddenError('The customer has answered this quote; make a new one');
+		if ('verbalDecision' in changed && (answered || row.state === 'replaced' || row.verbalDecision))
+			throw new ForbiddenError('The customer has already answered this quote');
+	},
+	async checkFields({ kind, row, changed }) {
+		if (kind === 'delete') return;
+		const f = { ...row, ...changed };
+		if (changed.verbalDecision && !(typeof f.verbalName === 'string' && f.verbalName.trim()))
+			throw new ValidationError({ verbalName: 'Type the name of the customer who answered' });
+	}
+};

@@ -6,6 +6,7 @@
 import { components, sheets } from '../services/components';
 import * as customers from '../services/customers';
 import { jobs } from '../services/jobs';
+import { quotes } from '../services/quotes';
 import { tests } from '../services/tests';
 import { vehicles } from '../services/vehicles';
 
@@ -15,6 +16,7 @@ export const AGGREGATES = {
 	job: jobs,
 	test: tests,
 	component: components,
-	sheet: sheets
+	sheet: sheets,
+	quote: quotes
 } as const;
 export type MutableEntity = keyof typeof AGGREGATES;

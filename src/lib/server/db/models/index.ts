@@ -8,7 +8,8 @@ import { COMPONENT_KINDS } from '../../../schemas/component';
 import { JOB_STATUSES, type JobStatus } from '../../../schemas/job';
 import { jsonText } from './json-text';
 import { initTest, Test } from './test';
-export { Test };
+import { initQuote, Quote } from './quote';
+export { Test, Quote };
 
 import { ROLES, type Role } from '../../../roles';
 export { ROLES, type Role };
@@ -210,6 +211,7 @@ const syncAttrs = () => ({
 /** Register every model on `s`. */
 export function initModels(s: Sequelize): void {
 	initTest(s, syncAttrs);
+	initQuote(s, syncAttrs);
 	const base = { sequelize: s, underscored: true };
 	Workshop.init({ id: a.uuidPk, name: str(120) }, { ...base, tableName: 'workshops' });
 	User.init(

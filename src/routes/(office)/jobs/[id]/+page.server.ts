@@ -16,6 +16,7 @@ import { decideTest } from '$lib/server/services/signoffs';
 import { refuseRetestedOk, refuseClose } from '$lib/rules';
 import { isLead } from '$lib/roles';
 import { jobFormOptions } from '../../options.server';
+import { jobMoney } from '$lib/server/quotes/job-money';
 import { jobPhotos, markPhoto } from '$lib/server/photos/service';
 import { User } from '$lib/server/db/models';
 
@@ -55,6 +56,7 @@ export async function load(event) {
 			settings: mayChangeReportSettings(actor),
 			caughtMail: mayReadCaughtMail(actor) && mailConfig().fakeDir !== null
 		},
+		money: await jobMoney(actor, id),
 		...(await jobFormOptions(actor, job))
 	};
 }
