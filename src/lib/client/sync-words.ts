@@ -16,7 +16,8 @@ export const ENTITY_WORDS: Record<string, string> = {
 	signoff: 'Sign-off',
 	swap_test: 'Swap test',
 	photo: 'Photo',
-	spark_test: 'Spark test'
+	spark_test: 'Spark test',
+	circuit_test: 'Battery or circuit test'
 };
 
 export const KIND_WORDS: Record<string, string> = { create: 'new', patch: 'change', delete: 'removal' };

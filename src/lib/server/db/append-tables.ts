@@ -8,7 +8,8 @@ export const APPEND_TABLES = {
 	reading: 'readings',
 	spark_test: 'spark_tests',
 	swap_test: 'swap_tests',
-	signoff: 'signoffs'
+	signoff: 'signoffs',
+	circuit_test: 'circuit_tests'
 } as const;
 export type StoredAppendEntity = keyof typeof APPEND_TABLES;
 export type AppendTable = (typeof APPEND_TABLES)[StoredAppendEntity];
@@ -31,7 +32,7 @@ export function groupByTable<T, V>(
 }
 
 const camel = (s: string) => s.replace(/_([a-z])/g, (_m, c: string) => c.toUpperCase());
-const JSON_COLUMNS = new Set(['samples', 'visual', 'device_result', 'server_result', 'before_counts', 'after_counts']);
+const JSON_COLUMNS = new Set(['samples', 'visual', 'device_result', 'server_result', 'before_counts', 'after_counts', 'inputs']);
 const HIDDEN = new Set(['workshop_id', 'op_id', 'seq']);
 
 /** The public record of an append-only row, as the pull sends it (camelCase, parsed JSON). */
