@@ -23,9 +23,10 @@ const issuePath = (r: { success: boolean; error?: { issues: { path: PropertyKey[
 	r.error ? formatZodPath(r.error.issues[0].path) : null;
 
 describe('entities', () => {
-	it('lists exactly the six mutable and five append-only entities', () => {
+	it('lists exactly the six mutable and six append-only entities', () => {
 		expect([...ENTITIES].sort()).toEqual(
 			[
+				'circuit_test',
 				'component',
 				'customer',
 				'job',
@@ -41,7 +42,7 @@ describe('entities', () => {
 		);
 	});
 
-	it.each(['reading', 'signoff', 'swap_test', 'photo', 'spark_test'] as Entity[])(
+	it.each(['reading', 'signoff', 'swap_test', 'photo', 'spark_test', 'circuit_test'] as Entity[])(
 		'treats %s as append-only',
 		(entity) => expect(isAppendOnly(entity)).toBe(true)
 	);
