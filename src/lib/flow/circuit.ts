@@ -40,7 +40,19 @@ export const VERDICT_WORDS: Record<CircuitVerdict, { word: string; shape: string
 
 /** One figure or choice a step asks for. `unit` is what the technician types in. */
 export type Field =
-	| { key: string; label: string; type: 'number'; unit: string; min: number; max: number; default?: number; source?: string; optional?: boolean }
+	| {
+			key: string;
+			label: string;
+			type: 'number';
+			unit: string;
+			min: number;
+			max: number;
+			default?: number;
+			source?: string;
+			optional?: boolean;
+			/** The sheet's check (by key) whose first band's min or max fills this limit. */
+			sheet?: { check: string; take: 'min' | 'max' };
+	  }
 	| { key: string; label: string; type: 'choice'; options: { value: string; label: string }[]; default?: string }
 	| { key: string; label: string; type: 'confirm' }
 	| { key: string; label: string; type: 'fuses' }
@@ -61,7 +73,8 @@ export type Step = {
 	when?: { key: string; value: string };
 };
 
-export type KindSpec = { title: string; button: string; steps: Step[] };
+/** `part`: the library's kind of part whose sheet gives this test's limits. */
+export type KindSpec = { title: string; button: string; part?: string; steps: Step[] };
 
 const yesNo = [
 	{ value: 'yes', label: 'Yes' },
@@ -84,6 +97,7 @@ export const KINDS: Record<CircuitKind, KindSpec> = {
 	battery: {
 		title: 'Battery test',
 		button: 'Battery',
+		part: 'battery',
 		steps: [
 			{
 				title: 'The battery’s label',
@@ -186,15 +200,16 @@ export const KINDS: Record<CircuitKind, KindSpec> = {
 	charging: {
 		title: 'Charging test',
 		button: 'Charging',
+		part: 'alternator',
 		steps: [
 			{
 				title: 'Limits',
 				how: 'Use the vehicle’s sheet; the figures below are the usual ones.',
 				cautions: ['battery'],
 				fields: [
-					{ key: 'minV', label: 'Lowest regulated voltage', type: 'number', unit: 'V', min: 11, max: 16, default: 13.5, source: CHARGING_SOURCE },
-					{ key: 'maxV', label: 'Highest regulated voltage', type: 'number', unit: 'V', min: 11, max: 16, default: 14.8, source: CHARGING_SOURCE },
-					{ key: 'rippleMaxV', label: 'Most AC ripple', type: 'number', unit: 'V', min: 0.01, max: 5, default: 0.5, source: RIPPLE_SOURCE }
+					{ key: 'minV', label: 'Lowest regulated voltage', type: 'number', unit: 'V', min: 11, max: 16, default: 13.5, source: CHARGING_SOURCE, sheet: { check: 'regulated', take: 'min' } },
+					{ key: 'maxV', label: 'Highest regulated voltage', type: 'number', unit: 'V', min: 11, max: 16, default: 14.8, source: CHARGING_SOURCE, sheet: { check: 'regulated', take: 'max' } },
+					{ key: 'rippleMaxV', label: 'Most AC ripple', type: 'number', unit: 'V', min: 0.01, max: 5, default: 0.5, source: RIPPLE_SOURCE, sheet: { check: 'ripple', take: 'max' } }
 				]
 			},
 			{
@@ -212,6 +227,7 @@ export const KINDS: Record<CircuitKind, KindSpec> = {
 	relay: {
 		title: 'Relay test',
 		button: 'Relay',
+		part: 'relay',
 		steps: [
 			{
 				title: 'Coil',
@@ -219,8 +235,8 @@ export const KINDS: Record<CircuitKind, KindSpec> = {
 				cautions: ['key_off'],
 				fields: [
 					{ key: 'coilOhm', label: 'Coil resistance', type: 'number', unit: 'Ω', min: 0, max: 100000 },
-					{ key: 'coilMin', label: 'Coil at least', type: 'number', unit: 'Ω', min: 0, max: 100000, default: 76.5, source: RELAY_COIL_SOURCE },
-					{ key: 'coilMax', label: 'Coil at most', type: 'number', unit: 'Ω', min: 0, max: 100000, default: 93.5, source: RELAY_COIL_SOURCE },
+					{ key: 'coilMin', label: 'Coil at least', type: 'number', unit: 'Ω', min: 0, max: 100000, default: 76.5, source: RELAY_COIL_SOURCE, sheet: { check: 'coil', take: 'min' } },
+					{ key: 'coilMax', label: 'Coil at most', type: 'number', unit: 'Ω', min: 0, max: 100000, default: 93.5, source: RELAY_COIL_SOURCE, sheet: { check: 'coil', take: 'max' } },
 					{ key: 'clicks', label: 'It clicks with 12 V on the coil', type: 'choice', options: yesNo, default: 'yes' }
 				]
 			},
@@ -230,7 +246,7 @@ export const KINDS: Record<CircuitKind, KindSpec> = {
 				cautions: ['back_probe'],
 				fields: [
 					{ key: 'contactV', label: 'Drop across the closed contacts', type: 'number', unit: 'V', min: 0, max: 14 },
-					{ key: 'contactMaxV', label: 'Most drop', type: 'number', unit: 'V', min: 0.01, max: 2, default: 0.2, source: RELAY_CONTACT_SOURCE }
+					{ key: 'contactMaxV', label: 'Most drop', type: 'number', unit: 'V', min: 0.01, max: 2, default: 0.2, source: RELAY_CONTACT_SOURCE, sheet: { check: 'contacts', take: 'max' } }
 				]
 			}
 		]
@@ -238,6 +254,7 @@ export const KINDS: Record<CircuitKind, KindSpec> = {
 	sensor: {
 		title: 'Crank or cam sensor',
 		button: 'Crank/cam sensor',
+		part: 'crank_cam_sensor',
 		steps: [
 			{
 				title: 'Which sensor',
@@ -255,10 +272,10 @@ export const KINDS: Record<CircuitKind, KindSpec> = {
 				when: { key: 'sensorType', value: 'inductive' },
 				fields: [
 					{ key: 'ohms', label: 'Resistance', type: 'number', unit: 'Ω', min: 0, max: 100000 },
-					{ key: 'ohmMin', label: 'Sheet: at least', type: 'number', unit: 'Ω', min: 0, max: 100000 },
-					{ key: 'ohmMax', label: 'Sheet: at most', type: 'number', unit: 'Ω', min: 0, max: 100000 },
+					{ key: 'ohmMin', label: 'Sheet: at least', type: 'number', unit: 'Ω', min: 0, max: 100000, sheet: { check: 'winding', take: 'min' } },
+					{ key: 'ohmMax', label: 'Sheet: at most', type: 'number', unit: 'Ω', min: 0, max: 100000, sheet: { check: 'winding', take: 'max' } },
 					{ key: 'acV', label: 'AC output while cranking', type: 'number', unit: 'V', min: 0, max: 100 },
-					{ key: 'acMinV', label: 'Sheet: AC at least', type: 'number', unit: 'V', min: 0, max: 100 }
+					{ key: 'acMinV', label: 'Sheet: AC at least', type: 'number', unit: 'V', min: 0, max: 100, sheet: { check: 'ac_output', take: 'min' } }
 				]
 			},
 			{
@@ -640,4 +657,25 @@ export function inputsFromTyped(kind: CircuitKind, typed: Typed): { inputs: Circ
 			}
 		}
 	return { inputs, errors };
+}
+
+/** A sheet's check as the limits need it: its key and bands (base units: Ω, V, A). */
+export type SheetLimitCheck = { key: string; bands: { fromC: number | null; toC: number | null; min: number | null; max: number | null }[] };
+
+/**
+ * The limits a part's sheet gives this kind's fields: for each field naming a sheet check, the
+ * first band's min or max (the band for every temperature when there is one). Figures the
+ * sheet lacks keep their usual value.
+ */
+export function sheetLimits(kind: CircuitKind, checks: readonly SheetLimitCheck[]): Record<string, number> {
+	const out: Record<string, number> = {};
+	for (const s of KINDS[kind].steps)
+		for (const f of s.fields) {
+			if (f.type !== 'number' || !f.sheet) continue;
+			const check = checks.find((c) => c.key === f.sheet!.check);
+			const band = check?.bands.find((b) => b.fromC == null && b.toC == null) ?? check?.bands[0];
+			const v = band?.[f.sheet.take];
+			if (typeof v === 'number' && Number.isFinite(v)) out[f.key] = v;
+		}
+	return out;
 }

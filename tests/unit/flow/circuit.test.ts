@@ -184,3 +184,17 @@ describe('circuit cautions', () => {
 		expect(cautionsFor({ step: 'circuit', hybrid: true, circuit: ['battery'] }).list[0].id).toBe('high_voltage');
 	});
 });
+
+describe('limits from the part’s sheet', () => {
+	it('fills each limit from its check’s band and leaves the rest at the usual figure', async () => {
+		const { sheetLimits } = await import('$lib/flow/circuit');
+		// Invented sheet figures (as a sheet in the library would hold them).
+		const limits = sheetLimits('charging', [
+			{ key: 'regulated', bands: [{ fromC: null, toC: null, min: 13.8, max: 14.6 }] },
+			{ key: 'other', bands: [{ fromC: null, toC: null, min: 1, max: 2 }] }
+		]);
+		expect(limits).toEqual({ minV: 13.8, maxV: 14.6 });
+		expect(sheetLimits('relay', [{ key: 'coil', bands: [{ fromC: null, toC: 50, min: 70, max: 90 }, { fromC: 50, toC: null, min: 75, max: 100 }] }])).toEqual({ coilMin: 70, coilMax: 90 });
+		expect(sheetLimits('drop', [{ key: 'regulated', bands: [] }])).toEqual({});
+	});
+});
