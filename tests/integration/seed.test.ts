@@ -79,7 +79,7 @@ describe('the demo no-start job', () => {
 			replacements: [NO_START_JOB.id],
 			type: QueryTypes.SELECT
 		});
-		// 12.08 V at 8 °C on the flooded table (EFB): about 21 % → charge and re-test; 240 mA against 50 mA → over.
+		// 12.08 V at 8 °C → 12.16 V at 26.7 °C on the flooded table (EFB; BCI): 39 % → charge and re-test; 240 mA against 50 mA → over.
 		expect(rows).toEqual([
 			{ kind: 'battery', server_verdict: 'charge_retest' },
 			{ kind: 'parasitic', server_verdict: 'high' }
