@@ -54,6 +54,17 @@ describe('circuit tests through sync', () => {
 		expect((pulled?.record as { inputs: { fuses: unknown[] } }).inputs.fuses).toHaveLength(2);
 	});
 
+	it('shows the lead the server’s result, the working and the phone’s differing word on the office job page', async () => {
+		const lead = new Client(base, '10.9.0.2');
+		expect((await lead.signIn(ws.users.lead.email, TEST_PASSWORD)).status).toBe(303);
+		const html = await (await lead.get(`/jobs/${jobId}`)).text();
+		expect(html).toContain('Battery, charging and circuits');
+		expect(html).toContain('Charge and re-test — the battery is 50 % charged, too low to judge it.');
+		expect(html).toContain('12.24 V → 50 % charged (Battery Council International rest-voltage table (flooded, 26.7 °C))');
+		expect(html).toContain('The phone showed “OK”; the workshop’s own check says “Charge and re-test”.');
+		expect(html).toContain('292 h ÷ 24 = 12.2 days');
+	});
+
 	it('refuses an unknown kind and inputs that are not plain figures', async () => {
 		const bad = [
 			create('circuit_test', { jobId, kind: 'injector', inputs: {} }),
