@@ -568,8 +568,20 @@ const JUDGES: Record<CircuitKind, (i: CircuitInputs) => CircuitResult> = {
 	sensor: judgeSensor
 };
 
-/** The one judge of a circuit test, on the phone and on the server. */
+/**
+ * The one judge of a circuit test, on the phone and on the server. A figure outside its
+ * field's range (which the phone never sends, but a record may carry) is "can't tell", so
+ * nothing is judged on it.
+ */
 export function judgeCircuit(kind: CircuitKind, inputs: CircuitInputs): CircuitResult {
+	for (const s of KINDS[kind].steps)
+		for (const f of s.fields) {
+			const v = inputs[f.key];
+			if (f.type === 'number' && typeof v === 'number' && !(v >= f.min && v <= f.max))
+				return { verdict: 'cant_tell', summary: `Can’t tell — ${f.label.toLowerCase()} must be between ${f.min} and ${f.max} ${f.unit}.`, lines: [], working: [] };
+			if (f.type === 'choice' && v != null && !f.options.some((o) => o.value === v))
+				return { verdict: 'cant_tell', summary: `Can’t tell — choose ${f.label.toLowerCase()}.`, lines: [], working: [] };
+		}
 	return JUDGES[kind](inputs);
 }
 

@@ -198,3 +198,12 @@ describe('limits from the part’s sheet', () => {
 		expect(sheetLimits('drop', [{ key: 'regulated', bands: [] }])).toEqual({});
 	});
 });
+
+describe('figures out of their range', () => {
+	it('are "can’t tell", never a throw, whatever a record carries', () => {
+		expect(judgeCircuit('parasitic', { capacityAh: 70, usablePct: 0, drawMa: 120 }).summary).toMatch(/^Can’t tell — share of the capacity usable/);
+		expect(judgeCircuit('battery', { ratedA: -5, restV: 12.6, tempC: 20, surfaceGone: true, measuredA: 500 }).verdict).toBe('cant_tell');
+		expect(judgeCircuit('drop', { feedV: 0.1, earthV: 0.1, currentA: -1 }).verdict).toBe('cant_tell');
+		expect(judgeCircuit('battery', { batteryType: 'gel', restV: 12.6, tempC: 20, surfaceGone: true }).summary).toBe('Can’t tell — choose battery type.');
+	});
+});
