@@ -206,7 +206,12 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 		const [jobId, testId, note] = [f.jobId, f.testId ?? null, f.note ?? null];
 		if (op.entity === 'circuit_test') {
 			// The server's own judgement of the same figures; the phone's is kept beside it.
-			const server = judgeCircuit(f.kind as CircuitKind, f.inputs as never);
+			let server: ReturnType<typeof judgeCircuit>;
+			try {
+				server = judgeCircuit(f.kind as CircuitKind, f.inputs as never);
+			} catch {
+				return reject(op, 'invalid', 'inputs: figures that cannot be judged');
+			}
 			const device = f.deviceResult as { verdict: string } | null | undefined;
 			const mismatch = device != null && !sameCircuitResult(device, server);
 			return {
