@@ -26,7 +26,8 @@ const config = {
 				'script-src': ['self'],
 				'style-src': ['self'],
 				'style-src-attr': ['unsafe-inline'],
-				'img-src': ['self', 'data:'],
+				// blob: for the photos kept on the phone (shown from IndexedDB with no signal).
+				'img-src': ['self', 'data:', 'blob:'],
 				'font-src': ['self'],
 				'connect-src': ['self'],
 				'manifest-src': ['self'],

@@ -7,6 +7,7 @@
 import { buildIfNeeded, freePort, migrate, serve } from './lib/app';
 import { mailEnv, startMailServer, stopMailServer } from './lib/mail';
 import { dbEnv, ensureDatabase, startServer } from './lib/mariadb';
+import { s3Env, startS3Server, stopS3Server } from './lib/s3';
 
 const name = process.env.DB_NAME ?? 'fieldbench';
 const { port: dbPort, started } = await startServer();
@@ -27,13 +28,18 @@ console.log(made ? `Demo workshop: ${made} record(s) created.` : 'Demo workshop:
 const mail = process.env.SMTP_HOST ? null : await startMailServer();
 if (mail) console.log(`Fake mail server on 127.0.0.1:${mail.port}: e-mail is saved in ${mail.dir}, nothing is sent`);
 
+// The local fake photo store keeps photos under .data/s3/ unless a real one is configured (S3_BUCKET).
+const store = process.env.S3_BUCKET ? null : await startS3Server();
+if (store) console.log(`Fake photo store on 127.0.0.1:${store.port}: photos are kept in ${store.dir}`);
+
 buildIfNeeded();
 const wantedPort = Number(process.env.PORT ?? 3000);
 const appPort = await freePort(wantedPort);
 if (appPort !== wantedPort) console.log(`Port ${wantedPort} is taken; the app uses ${appPort}.`);
 const { child, url } = await serve(appPort, {
 	...dbEnv(dbPort, name),
-	...(mail ? mailEnv(mail.port, mail.dir) : {})
+	...(mail ? mailEnv(mail.port, mail.dir) : {}),
+	...(store ? s3Env(store.port) : {})
 });
 // The address comes once, on the last line; the app processes print nothing.
 console.log('Stop with Ctrl+C; stop the database with: npm run db:stop');
@@ -43,6 +49,7 @@ for (const sig of ['SIGINT', 'SIGTERM'] as const) {
 	process.on(sig, async () => {
 		if (child.pid) process.kill(-child.pid, sig);
 		if (mail?.started) await stopMailServer();
+		if (store?.started) await stopS3Server();
 		process.exit(0);
 	});
 }

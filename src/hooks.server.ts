@@ -4,6 +4,7 @@ import { readSession } from '$lib/server/auth/session';
 import { closeDb, db } from '$lib/server/db';
 import { errorBody } from '$lib/server/errors';
 import { startMailWorker, stopMailWorker } from '$lib/server/mail/worker';
+import { startPhotoCleanup, stopPhotoCleanup } from '$lib/server/photos/service';
 import { refuseCrossSite, refuseUnreadableForm, shapeApiRefusal } from '$lib/server/request-rules';
 import { applySecurityHeaders } from '$lib/server/security-headers';
 
@@ -12,8 +13,15 @@ db(); // registers the models once per server process
 // adapter-node stops taking requests on SIGTERM/SIGINT and then emits this: close the
 // database pool so the process ends (its idle connections would keep it alive).
 // The e-mail worker stops first (a message under way is finished and recorded).
-if (!building) startMailWorker();
-process.once('sveltekit:shutdown' as 'exit', () => void stopMailWorker().finally(closeDb));
+// The photo cleanup (objects of photos removed over 30 days ago) runs hourly in each process.
+if (!building) {
+	startMailWorker();
+	startPhotoCleanup();
+}
+process.once('sveltekit:shutdown' as 'exit', () => {
+	stopPhotoCleanup();
+	void stopMailWorker().finally(closeDb);
+});
 
 export const handle: Handle = async ({ event, resolve }) => {
 	// Another site's post, or a form post that is no form, never reaches a route.

@@ -90,7 +90,7 @@ export async function serve(
 			...env,
 			HOST: '127.0.0.1',
 			PORT: String(port),
-			BODY_SIZE_LIMIT: '8M',
+			BODY_SIZE_LIMIT: '12M',
 			MIGRATIONS_DIR: path.join(ROOT, 'migrations')
 		}
 	});

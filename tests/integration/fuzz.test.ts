@@ -157,7 +157,7 @@ const pushBodyArb = fc.record({
 	ops: fc.array(
 		fc.record({
 			opId: fc.oneof(fc.constant(null).map(() => uuidv7()), fc.string()),
-			entity: fc.oneof(fc.constantFrom('customer', 'vehicle', 'job', 'test', 'component', 'sheet', 'reading', 'signoff', 'swap_test', 'photo', 'spark_test', 'circuit_test'), fc.string()),
+			entity: fc.oneof(fc.constantFrom('customer', 'vehicle', 'job', 'test', 'component', 'sheet', 'reading', 'signoff', 'swap_test', 'photo', 'spark_test', 'photo_mark', 'circuit_test'), fc.string()),
 			entityId: fc.oneof(fc.constant(null).map(() => uuidv7()), idArb('job'), idArb('test')),
 			kind: fc.constantFrom('create', 'patch', 'delete', 'merge'),
 			baseVersion: fc.oneof(fc.nat(5), fc.integer(), fc.constant(-1)),
@@ -205,8 +205,11 @@ const routes = (): Route[] => [
 	{ kind: 'api', method: 'POST', path: fc.constant('/api/components/csv'), body: fc.oneof(fc.string({ maxLength: 300 }), fc.constantFrom('part_number,kind\nFZ-1,ignition_coil\n', 'a;b;c\n1;2', '"unterminated\n', '\ufeffpart_number\n')), type: fc.constantFrom('text/csv', 'text/plain', 'application/json', '') },
 	{ kind: 'api', method: 'PUT', path: fc.constantFrom('/api/jobs', '/api/me', '/api/sync/push'), body: bodyArb() },
 	{ kind: 'api', method: 'DELETE', path: fc.oneof(p('/api/jobs/:id', 'job'), fc.constant('/api/customers')) },
+	{ kind: 'api', method: 'GET', path: withQuery(fc.oneof(p('/api/photos/:id', 'job'), p('/api/photos/:id/file', 'job'), p('/api/jobs/:id/photos', 'job'))) },
+	{ kind: 'api', method: 'PUT', path: withQuery(p('/api/photos/:id', 'job')), body: fc.oneof(fc.string({ maxLength: 300 }), bodyArb()), type: fc.constantFrom('image/jpeg', 'image/png', 'application/octet-stream', '') },
+	{ kind: 'api', method: 'POST', path: p('/api/photos/:id/marks', 'job'), body: bodyArb(fc.record({ mark: fc.oneof(fc.constantFrom('removed', 'for_customer', 'not_for_customer', ''), valueArb) }, { requiredKeys: [] })) },
 	{ kind: 'form', method: 'POST', path: fc.constantFrom('/jobs/new', '/customers/new', '/vehicles/new', '/team?/invite', '/sign-in', '/sign-in?next=%2Fjobs', '/password', '/sign-out') },
-	{ kind: 'form', method: 'POST', path: fc.oneof(p('/jobs/:id?/update', 'job'), p('/jobs/:id?/status', 'job'), p('/jobs/:id?/addCode', 'job'), p('/jobs/:id?/removeCode', 'job'), p('/customers/:id?/update', 'customer'), p('/vehicles/:id?/update', 'vehicle'), p('/jobs/:id?/nothing', 'job')) },
+	{ kind: 'form', method: 'POST', path: fc.oneof(p('/jobs/:id?/update', 'job'), p('/jobs/:id?/status', 'job'), p('/jobs/:id?/addCode', 'job'), p('/jobs/:id?/removeCode', 'job'), p('/jobs/:id?/photoMark', 'job'), p('/customers/:id?/update', 'customer'), p('/vehicles/:id?/update', 'vehicle'), p('/jobs/:id?/nothing', 'job')) },
 	{ kind: 'page', method: 'GET', path: withQuery(fc.oneof(p('/jobs/:id', 'job'), p('/customers/:id', 'customer'), p('/vehicles/:id', 'vehicle'), p('/library/:id', 'component'), p('/library/:id/edit', 'component'), p('/library/:id/sheets/:id', 'component', 'sheet'), p('/field/job/:id', 'job'), fc.constantFrom('/jobs', '/jobs/new', '/customers/new', '/vehicles/new', '/team', '/library', '/sign-in', '/shell', '/field'))) }
 ];
 

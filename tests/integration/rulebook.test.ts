@@ -22,6 +22,9 @@ import * as customers from '../../src/lib/server/services/customers';
 import { jobs } from '../../src/lib/server/services/jobs';
 import { tests } from '../../src/lib/server/services/tests';
 import { vehicles } from '../../src/lib/server/services/vehicles';
+import { uploadPhoto } from '../../src/lib/server/photos/service';
+import { createHash } from 'node:crypto';
+import sharp from 'sharp';
 import { makeWorkshop } from '../helpers/fixtures';
 import { Client } from '../helpers/http';
 import { signedIn, type Workshop } from '../helpers/records';
@@ -139,6 +142,24 @@ const signOffOf = (fields: Record<string, string> = {}) => ({
 	sync: (t: T) => create('signoff', { testId: t.test.id, mode: 'witnessed', ...fields }, t.id),
 	landed: async (t: T, r: RoleKey) =>
 		(await count('SELECT COUNT(*) AS n FROM signoffs WHERE test_id = ? AND created_by = ? AND decision = ?', t.test.id, idOf(r), fields.decision ?? 'signed')) === 1
+});
+/** A small invented picture (grey, 64×48 JPEG), made once. */
+let picture: Buffer | null = null;
+/** A photo taken by `by` on a job of `worker`'s, through the upload (the fake photo store). */
+async function photoOn(worker: { id: string }, by: Actor) {
+	picture ??= await sharp({ create: { width: 64, height: 48, channels: 3, background: '#707070' } }).jpeg().toBuffer();
+	const j = await job(worker.id);
+	const sha256 = createHash('sha256').update(picture).digest('hex');
+	const { photo } = await uploadPhoto(by, uuidv7(), { jobId: j.id, sha256 }, picture);
+	return { job: j, photo, id: uuidv7() };
+}
+/** The channels of a photo mark on `t.photo`: the job page's form, the JSON API, a phone's push. */
+const photoMarkOf = (mark: string) => ({
+	form: (t: T) => ({ path: `/jobs/${t.job.id}?/photoMark`, fields: { photoId: t.photo.id, mark } }),
+	api: (t: T) => ({ method: 'POST', path: `/api/photos/${t.photo.id}/marks`, body: { mark } }),
+	sync: (t: T) => create('photo_mark', { photoId: t.photo.id, mark }, t.id),
+	landed: async (t: T, r: RoleKey) =>
+		(await count('SELECT COUNT(*) AS n FROM photo_marks WHERE photo_id = ? AND created_by = ? AND mark = ?', t.photo.id, idOf(r), mark)) === 1
 });
 /** A draft sheet of the component, started by `by`. */
 const draft = async (by: Actor) => (await sheets.create(by, { componentId, checks: CHECKS })) as T;
@@ -393,6 +414,26 @@ const ACTIONS: Action[] = [
 			}
 		})
 	),
+
+	// ——— Photo marks (remove; for the customer): the person who took it, or a lead ———
+	{
+		name: 'remove a photo one took oneself',
+		allowed: EVERYONE,
+		setup: async (r) => photoOn(ownWorker(r), self(r)),
+		...photoMarkOf('removed')
+	},
+	{
+		name: 'remove a photo someone else took on one’s own job',
+		allowed: LEADS,
+		setup: async (r) => photoOn(ownWorker(r), leadA),
+		...photoMarkOf('removed')
+	},
+	{
+		name: 'choose a photo someone else took for the customer report',
+		allowed: LEADS,
+		setup: async (r) => photoOn(ownWorker(r), leadA),
+		...photoMarkOf('for_customer')
+	},
 
 	// ——— Sign-offs of apprentice work ———
 	{ name: 'sign off an apprentice’s finished test', allowed: LEADS, setup: () => apprenticeTest(), ...signOffOf() },
@@ -672,6 +713,7 @@ beforeAll(async () => {
 
 describe(`the rulebook: ${TOTAL} cases (${ROLES.length} roles × ${ACTIONS.length} actions × the channels that offer each)`, () => {
 	const groups = [
+		['photos', (x: Action) => /photo/.test(x.name)],
 		['jobs', (x: Action) => /job/.test(x.name) && !x.read && !/test|reading|sign off/.test(x.name)],
 		['customers and vehicles', (x: Action) => /customer|vehicle/.test(x.name)],
 		['tests, readings, spark and swap tests, sign-offs', (x: Action) => /test|reading|sign off/.test(x.name) && !x.read],

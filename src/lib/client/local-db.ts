@@ -9,6 +9,9 @@
  * - `outbox`: ops waiting to send, in the order made (auto-increment key).
  * - `issues`: what needs attention: rejected ops (with the reason), clashes kept for the lead.
  * - `meta`: the pull cursor, the device id, the last sync.
+ * - `photos` (version 2): photos taken on this phone, the shrunk picture as a blob with its
+ *   record and where its upload stands (`client/photos.ts`); kept after sending, so the
+ *   phone shows them without signal.
  */
 import { openDB, type DBSchema, type IDBPDatabase } from 'idb';
 import type { Entity, Op, PushResult } from '../sync/protocol';
@@ -28,7 +31,29 @@ export type LocalRecord = {
 export type OutboxEntry = { seq?: number; op: Op; jobId: string | null; createdAt: string; before?: Record<string, unknown> };
 export type Issue = { opId: string; op: Op; result: PushResult; kind: 'rejected' | 'conflict'; at: string; seen: boolean; before?: Record<string, unknown> };
 
+/** A photo taken on this phone and its upload. */
+export type LocalPhoto = {
+	id: string;
+	jobId: string;
+	testId: string | null;
+	readingId: string | null;
+	caption: string | null;
+	blob: Blob;
+	type: string;
+	bytes: number;
+	width: number;
+	height: number;
+	sha256: string;
+	/** `waiting` to send (also after a failure, to be tried again), `sent`, or `refused` by the workshop (kept, with why). */
+	state: 'waiting' | 'sent' | 'refused';
+	attempts: number;
+	/** Why the workshop refused it, in words. */
+	problem?: string;
+	createdAt: string;
+};
+
 export interface FieldbenchDB extends DBSchema {
+	photos: { key: string; value: LocalPhoto; indexes: { 'by-job': string; 'by-state': string } };
 	records: { key: [string, string]; value: LocalRecord; indexes: { 'by-entity': string; 'by-job': string } };
 	outbox: { key: number; value: OutboxEntry };
 	issues: { key: string; value: Issue };
@@ -36,7 +61,7 @@ export interface FieldbenchDB extends DBSchema {
 }
 
 export type LocalDb = IDBPDatabase<FieldbenchDB>;
-export const DB_VERSION = 1;
+export const DB_VERSION = 2;
 
 /** The database name for a user. */
 export const dbNameFor = (userId: string) => `fieldbench-${userId}`;
@@ -52,6 +77,11 @@ export function openLocalDb(userId: string): Promise<LocalDb> {
 				db.createObjectStore('outbox', { keyPath: 'seq', autoIncrement: true });
 				db.createObjectStore('issues', { keyPath: 'opId' });
 				db.createObjectStore('meta');
+			}
+			if (oldVersion < 2) {
+				const photos = db.createObjectStore('photos', { keyPath: 'id' });
+				photos.createIndex('by-job', 'jobId');
+				photos.createIndex('by-state', 'state');
 			}
 		}
 	});

@@ -8,6 +8,7 @@ import { v7 as uuidv7 } from 'uuid';
 import { backoffMs, SyncEngine, type SyncReport } from './engine';
 import { getMeta, openLocalDb, type LocalDb } from './local-db';
 import { countOutbox } from './outbox';
+import { countPhotos, uploads } from './photos';
 import { syncStatus } from './status.svelte';
 
 export type Me = { id: string; name: string; email: string; role: 'apprentice' | 'technician' | 'lead' | 'owner'; workshopId: string; workshopName: string };
@@ -19,6 +20,7 @@ const TIMER_MS = 30_000;
 
 let current: Promise<{ me: Me; db: LocalDb }> | null = null;
 let engine: SyncEngine | null = null;
+let localDb: LocalDb | null = null;
 let failures = 0;
 let timer: ReturnType<typeof setTimeout> | null = null;
 
@@ -55,6 +57,7 @@ export function local(): Promise<{ me: Me; db: LocalDb }> {
 		const me = await whoAmI();
 		const db = await openLocalDb(me.id);
 		engine = new SyncEngine(db, deviceId());
+		localDb = db;
 		await refreshCounts(db);
 		startRunner();
 		requestPersistence();
@@ -74,26 +77,32 @@ export function forgetMe() {
 
 export async function refreshCounts(db: LocalDb) {
 	syncStatus.waiting = await countOutbox(db);
+	await countPhotos(db);
 	syncStatus.issues = await db.count('issues');
 	syncStatus.lastSyncAt = (await getMeta<string>(db, 'lastSyncAt')) ?? null;
 }
 
-async function runLocked(fn: () => Promise<void>) {
+/** Runs `fn` holding the sync lock; skips when another runner holds it, unless `wait`. */
+async function runLocked(fn: () => Promise<void>, wait = false) {
 	const locks = (navigator as Navigator & { locks?: LockManager }).locks;
 	if (!locks) return fn();
-	await locks.request('fieldbench-sync', { ifAvailable: true }, async (lock) => {
+	await locks.request('fieldbench-sync', wait ? {} : { ifAvailable: true }, async (lock) => {
 		if (lock) await fn();
 	});
 }
 
-/** Sync now (the button, the timer, the `online` event and every local write call this). */
-export async function syncNow(): Promise<SyncReport | null> {
+/**
+ * Sync now (the button, the timer, the `online` event and every local write call this). The
+ * button passes `wait`: when a sync is already running it waits for it and runs once more, so
+ * "Sync now" ends only when this phone is up to date; the others skip a sync already running.
+ */
+export async function syncNow(opts: { wait?: boolean } = {}): Promise<SyncReport | null> {
 	if (!engine) return null;
 	let report: SyncReport | null = null;
 	syncStatus.state = 'syncing';
 	await runLocked(async () => {
 		report = await engine!.syncOnce();
-	});
+	}, opts.wait);
 	const r = report as SyncReport | null;
 	if (r) {
 		syncStatus.state = r.state;
@@ -101,11 +110,20 @@ export async function syncNow(): Promise<SyncReport | null> {
 		syncStatus.issues = r.issues;
 		syncStatus.lastError = r.error ?? null;
 		if (r.state === 'idle') syncStatus.lastSyncAt = new Date().toISOString();
+		// Photos go after the records they hang on (their job is on the server by now).
+		if (r.state === 'idle' && localDb) void uploads.run(localDb).then(() => photoFailures());
 		failures = r.state === 'idle' || r.state === 'signed_out' ? 0 : failures + 1;
 	} else if (syncStatus.state === 'syncing') syncStatus.state = 'idle'; // another tab is syncing
 	// After a failure: back off (exponential, with jitter), and never sooner than the server asked.
 	schedule(failures ? Math.max(backoffMs(failures - 1), r?.retryAfterMs ?? 0) : TIMER_MS);
 	return r;
+}
+
+/** After an upload round that left photos waiting (a failure), try again soon, backing off. */
+let photoAttempt = 0;
+function photoFailures() {
+	if (!syncStatus.photosWaiting || syncStatus.state === 'signed_out') return void (photoAttempt = 0);
+	schedule(backoffMs(photoAttempt++));
 }
 
 function schedule(ms: number) {

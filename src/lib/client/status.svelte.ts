@@ -4,6 +4,8 @@ import type { SyncProblem, SyncState } from './engine';
 class SyncStatus {
 	state = $state<SyncState>('idle');
 	waiting = $state(0);
+	/** Photos taken on this phone and not sent yet (`client/photos.ts`). */
+	photosWaiting = $state(0);
 	issues = $state(0);
 	lastSyncAt = $state<string | null>(null);
 	lastError = $state<SyncProblem | null>(null);

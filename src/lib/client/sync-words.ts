@@ -16,6 +16,7 @@ export const ENTITY_WORDS: Record<string, string> = {
 	signoff: 'Sign-off',
 	swap_test: 'Swap test',
 	photo: 'Photo',
+	photo_mark: 'Photo removal or choice',
 	spark_test: 'Spark test',
 	circuit_test: 'Battery or circuit test'
 };

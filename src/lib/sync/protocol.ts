@@ -16,7 +16,15 @@ export const MUTABLE_ENTITIES = [
 	'sheet'
 ] as const;
 /** Entities that accept only `create`: once written they are kept as they are. */
-export const APPEND_ONLY = ['reading', 'signoff', 'swap_test', 'photo', 'spark_test', 'circuit_test'] as const;
+export const APPEND_ONLY = [
+	'reading',
+	'signoff',
+	'swap_test',
+	'photo',
+	'spark_test',
+	'photo_mark',
+	'circuit_test'
+] as const;
 /** The closed list of entities that can travel through sync. */
 export const ENTITIES = [...MUTABLE_ENTITIES, ...APPEND_ONLY] as const;
 

@@ -23,7 +23,7 @@ const issuePath = (r: { success: boolean; error?: { issues: { path: PropertyKey[
 	r.error ? formatZodPath(r.error.issues[0].path) : null;
 
 describe('entities', () => {
-	it('lists exactly the six mutable and six append-only entities', () => {
+	it('lists exactly the six mutable and seven append-only entities', () => {
 		expect([...ENTITIES].sort()).toEqual(
 			[
 				'circuit_test',
@@ -31,6 +31,7 @@ describe('entities', () => {
 				'customer',
 				'job',
 				'photo',
+				'photo_mark',
 				'reading',
 				'sheet',
 				'signoff',
@@ -42,7 +43,7 @@ describe('entities', () => {
 		);
 	});
 
-	it.each(['reading', 'signoff', 'swap_test', 'photo', 'spark_test', 'circuit_test'] as Entity[])(
+	it.each(['reading', 'signoff', 'swap_test', 'photo', 'spark_test', 'photo_mark', 'circuit_test'] as Entity[])(
 		'treats %s as append-only',
 		(entity) => expect(isAppendOnly(entity)).toBe(true)
 	);

@@ -9,6 +9,8 @@ export const APPEND_TABLES = {
 	spark_test: 'spark_tests',
 	swap_test: 'swap_tests',
 	signoff: 'signoffs',
+	photo: 'photos',
+	photo_mark: 'photo_marks',
 	circuit_test: 'circuit_tests'
 } as const;
 export type StoredAppendEntity = keyof typeof APPEND_TABLES;
@@ -33,7 +35,8 @@ export function groupByTable<T, V>(
 
 const camel = (s: string) => s.replace(/_([a-z])/g, (_m, c: string) => c.toUpperCase());
 const JSON_COLUMNS = new Set(['samples', 'visual', 'device_result', 'server_result', 'before_counts', 'after_counts', 'inputs']);
-const HIDDEN = new Set(['workshop_id', 'op_id', 'seq']);
+/** Never sent: the workshop, feed bookkeeping and where a photo's bytes are stored. */
+const HIDDEN = new Set(['workshop_id', 'op_id', 'seq', 'object_key', 'thumb_key', 'purged_at']);
 
 /** The public record of an append-only row, as the pull sends it (camelCase, parsed JSON). */
 export function appendRecord(entity: string, row: Record<string, unknown>): Record<string, unknown> {

@@ -17,13 +17,15 @@ import type { ReportSettings } from './settings';
 import { jobRecords } from '../services/job-facts';
 import { signOffStates } from '../../tests/facts';
 import { isSignedOff } from '../../tests/signoff';
+import { customerPhotos } from '../photos/service';
 
 /**
- * The photos of a job marked for the customer. The photo store plugs in here; until it
- * exists no photo is marked, so the list is empty and the report draws none.
+ * The photos of a job chosen for the customer (`photos/service.ts`: marked "for the
+ * customer", not removed), each with its thumbnail inline so the customer's page and the
+ * PDF need nothing else.
  */
-export async function photosForCustomer(_actor: Actor, _jobId: string): Promise<ReportPhoto[]> {
-	return [];
+export async function photosForCustomer(actor: Actor, jobId: string): Promise<ReportPhoto[]> {
+	return customerPhotos(actor, jobId);
 }
 
 type Row = Record<string, unknown>;

@@ -75,8 +75,14 @@ function lines(doc: Doc, head: string, rows: string[]) {
 	doc.y += 6;
 }
 
-async function photos(doc: Doc, list: ReportPhoto[], load: PdfOptions['loadPhoto']) {
-	if (!list.length || !load) return;
+/** The bytes of a photo whose `src` is a data address (as `customerPhotos` gives them). */
+const inlineBytes = async (p: ReportPhoto) => {
+	const m = /^data:image\/(?:jpeg|png);base64,(.+)$/.exec(p.src);
+	return m ? Buffer.from(m[1], 'base64') : null;
+};
+
+async function photos(doc: Doc, list: ReportPhoto[], load: PdfOptions['loadPhoto'] = inlineBytes) {
+	if (!list.length) return;
 	heading(doc, 'Photos');
 	const w = Math.min(80 * MM, (doc.page.width - doc.page.margins.left - doc.page.margins.right - 12) / 2);
 	const h = w * 0.75;

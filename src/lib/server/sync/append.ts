@@ -31,6 +31,8 @@ import { addDecision, addReading, addToSummaries as writeSummaries, emptyDelta, 
 import type { SignOffDecision } from '../../tests/signoff';
 import { groupByTable, type AppendTable, type StoredAppendEntity } from '../db/append-tables';
 import { quickReadingCreate } from './quick-parse';
+import { photoFacts, photoMarkFields } from '../photos/service';
+import { refusePhotoMark, type PhotoMark } from '../../photos/marks';
 
 type Ctx = { actor: Actor; t: Transaction };
 type TestRow = { id: string; job_id: string; assignee_id: string | null; hybrid: number | bigint | null; technician_id: string | null; sheet_id: string | null; meter: string | null; temperature: string | null; deleted: number | bigint; checks: string | null };
@@ -83,10 +85,13 @@ const COLUMNS: Record<AppendTable, readonly string[]> = {
 	signoffs: [...BASE, 'mode', 'decision', 'note'],
 	spark_tests: [...BASE, 'note', 'position', 'gap_mm', 'outcome'],
 	swap_tests: [...BASE, 'note', 'from_position', 'to_position', 'before_counts', 'after_counts', 'conclusion'],
-	circuit_tests: [...BASE, 'note', 'kind', 'inputs', 'device_result', 'server_result', 'mismatch', 'server_verdict']
+	circuit_tests: [...BASE, 'note', 'kind', 'inputs', 'device_result', 'server_result', 'mismatch', 'server_verdict'],
+	// Photos are written by their upload (`photos/service.ts`), never by a push.
+	photos: [...BASE],
+	photo_marks: [...BASE, 'photo_id', 'mark']
 };
 
-const SCHEMAS = { reading: readingCreate, spark_test: sparkTestCreate, swap_test: swapTestCreate, signoff: signoffCreate, circuit_test: circuitTestCreate };
+const SCHEMAS = { reading: readingCreate, spark_test: sparkTestCreate, swap_test: swapTestCreate, signoff: signoffCreate, photo_mark: photoMarkFields, circuit_test: circuitTestCreate };
 const reject = (op: Op, reason: Reason, message?: string) =>
 	({ opId: op.opId, status: 'rejected', reason, ...(message ? { message } : {}) }) as PushResult;
 
@@ -150,15 +155,17 @@ async function mapInSlices<T, U>(items: T[], fn: (item: T) => U, size = 64): Pro
 /** Validate and prepare each op; returns a result for refused ops and a row for the rest. */
 async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> {
 	const parsed = ops.map((op) => {
-		if (op.entity === 'photo') return { op, error: 'Photos are not taken yet' };
+		if (op.entity === 'photo') return { op, error: 'A photo reaches the workshop by its upload, not by sync' };
 		const quick = op.entity === 'reading' ? quickReadingCreate(op.fields) : null;
 		if (quick) return { op, f: quick as Record<string, unknown> };
-		const r = SCHEMAS[op.entity as StoredAppendEntity].safeParse(op.fields);
+		const r = SCHEMAS[op.entity as Exclude<StoredAppendEntity, 'photo'>].safeParse(op.fields);
 		return r.success ? { op, f: r.data as Record<string, unknown> } : { op, error: r.error.issues[0].path.join('.') + ': ' + r.error.issues[0].message };
 	});
 	const ids = (k: string) => [...new Set(parsed.flatMap((p) => ('f' in p && p.f![k] ? [p.f![k] as string] : [])))];
 	const tests = await loadTests(ids('testId'), ctx);
-	const jobs = await loadJobs(ids('jobId'), ctx);
+	// The photos that marks refer to (their job and author).
+	const photos = await photoFacts(ctx.actor, ids('photoId'), ctx.t);
+	const jobs = await loadJobs([...new Set([...ids('jobId'), ...[...photos.values()].map((p) => p.jobId)])], ctx);
 	// Where each signed-off test stands (only when the push carries sign-offs).
 	const signIds = [...new Set(parsed.flatMap((p) => (p.op.entity === 'signoff' && 'f' in p && p.f ? [p.f.testId as string] : [])))];
 	const signing = await signOffFacts(ctx.actor, signIds, ctx.t);
@@ -200,6 +207,14 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 			};
 			if (mismatch) prepared.mismatch = { device: String(device!.verdict), server: server.verdict };
 			return prepared;
+		}
+		if (op.entity === 'photo_mark') {
+			const photo = photos.get(f.photoId as string);
+			const job = photo && jobs.get(photo.jobId);
+			if (!photo || refuseAppend(ctx.actor, op.entity, job && { ...job, hybrid: false })) return reject(op, 'not_found');
+			const why = refusePhotoMark(ctx.actor, photo, f.mark as PhotoMark);
+			if (why) return reject(op, 'forbidden', why);
+			return { op, table: 'photo_marks', row: row(photo.jobId, photo.testId, f.photoId, f.mark), same: '' };
 		}
 		const refusal = refuseAppend(ctx.actor, op.entity, jobs.get(f.jobId as string));
 		if (refusal) return reject(op, refusal.reason, refusal.message);

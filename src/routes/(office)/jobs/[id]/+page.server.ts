@@ -16,6 +16,8 @@ import { decideTest } from '$lib/server/services/signoffs';
 import { refuseRetestedOk, refuseClose } from '$lib/rules';
 import { isLead } from '$lib/roles';
 import { jobFormOptions } from '../../options.server';
+import { jobPhotos, markPhoto } from '$lib/server/photos/service';
+import { User } from '$lib/server/db/models';
 
 const listOf = (fd: FormData): CodeList => (fd.get('list') === 'after' ? 'after' : 'before');
 
@@ -28,10 +30,12 @@ export async function load(event) {
 		if (e instanceof NotFoundError) error(404, 'No such job, or it is not assigned to you');
 		throw e;
 	});
-	const [history, tests, facts, circuits] = await Promise.all([
+	const [history, tests, facts, photos, people, circuits] = await Promise.all([
 		jobs.statusHistory(actor, id),
 		jobTests(actor, id),
 		loadJobFacts(actor, id),
+		jobPhotos(actor, id),
+		User.findAll({ where: { workshopId: actor.workshopId }, attributes: ['id', 'name'] }),
 		jobCircuitTests(actor, id)
 	]);
 	return {
@@ -39,6 +43,8 @@ export async function load(event) {
 		job,
 		history,
 		tests,
+		photos,
+		people: Object.fromEntries(people.map((u) => [u.id, u.name])),
 		circuits,
 		next: NEXT_STATUS[job.status],
 		/** What the work must still show before these moves (null: nothing missing). */
@@ -113,6 +119,16 @@ export const actions = {
 			return failFrom(e, valuesOf(fd), action);
 		}
 		return { action, saved: true };
+	},
+	photoMark: async (event) => {
+		const actor = actorOf(guardPage(event));
+		const fd = await event.request.formData();
+		try {
+			await markPhoto(actor, String(fd.get('photoId') ?? ''), { mark: fd.get('mark') ?? undefined });
+		} catch (e) {
+			return failFrom(e, valuesOf(fd), 'photoMark');
+		}
+		return { action: 'photoMark', saved: true };
 	},
 	withdrawReport: async (event) => {
 		const actor = actorOf(guardPage(event));

@@ -1,0 +1,257 @@
+/**
+ * Evidence photos against the local fake photo store (s3rver, started by the runner): the
+ * upload's checks (type by content, 10 MB, the phone's SHA-256, the object stored before the
+ * record), the thumbnail, who may see a photo and its download address, the address's
+ * expiry, marks (remove, for the customer) through the API and sync, and the cleanup job.
+ *
+ * References outside the project: the file signatures are those of the formats' own
+ * specifications (JPEG: ITU-T T.81 Annex B, SOI marker FF D8; PNG: ISO/IEC 15948 §5.2, the
+ * 8-byte signature; WebP: the RIFF container, "RIFF" … "WEBP"); SHA-256 is Node's own
+ * (FIPS 180-4); picture sizes are read back with sharp (libvips), not with project code.
+ */
+import { createHash } from 'node:crypto';
+import { QueryTypes } from 'sequelize';
+import sharp from 'sharp';
+import { v7 as uuidv7 } from 'uuid';
+import { beforeAll, describe, expect, inject, it } from 'vitest';
+import { db } from '../../src/lib/server/db';
+import { execFileSync } from 'node:child_process';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { customerPhotos, purgeRemovedPhotos } from '../../src/lib/server/photos/service';
+import { renderReportPdf } from '../../src/lib/server/reports/pdf';
+import { previewReport } from '../../src/lib/server/reports/service';
+import { getObject, headObject } from '../../src/lib/server/photos/storage';
+import { jobs } from '../../src/lib/server/services/jobs';
+import { makeWorkshop } from '../helpers/fixtures';
+import { signedIn } from '../helpers/desk';
+import type { Client } from '../helpers/http';
+import { expectError } from '../helpers/records';
+import { create, pullAll, push } from '../helpers/sync';
+
+const base = inject('baseURL');
+type Ws = Awaited<ReturnType<typeof makeWorkshop>>;
+let w: Ws;
+let other: Ws;
+let as: Record<'lead' | 'technician' | 'apprentice' | 'otherLead', Client>;
+let jobId: string;
+
+const sha = (b: Buffer) => createHash('sha256').update(b).digest('hex');
+const rows = (sql: string, ...replacements: unknown[]) =>
+	db().query<Record<string, unknown>>(sql, { replacements, type: QueryTypes.SELECT });
+
+/** An invented test picture: a grey field with a darker block, `w`×`h`, as JPEG. */
+const jpeg = (width = 1200, height = 900, shade = 120) =>
+	sharp({ create: { width, height, channels: 3, background: { r: shade, g: shade, b: shade } } })
+		.composite([{ input: { create: { width: Math.floor(width / 3), height: Math.floor(height / 3), channels: 3, background: '#202020' } }, left: 4, top: 4 }])
+		.jpeg({ quality: 85 })
+		.toBuffer();
+
+function upload(c: Client, id: string, body: Buffer, params: Record<string, string>, type = 'image/jpeg') {
+	return fetch(`${base}/api/photos/${id}?${new URLSearchParams(params)}`, {
+		method: 'PUT',
+		headers: c.headers({ 'content-type': type, accept: 'application/json' }),
+		body: new Uint8Array(body)
+	});
+}
+
+beforeAll(async () => {
+	w = await makeWorkshop('Photos');
+	other = await makeWorkshop('Elsewhere');
+	as = {
+		lead: await signedIn(base, w.users.lead.email),
+		technician: await signedIn(base, w.users.technician.email),
+		apprentice: await signedIn(base, w.users.apprentice.email),
+		otherLead: await signedIn(base, other.users.lead.email)
+	};
+	const job = await jobs.create(w.users.lead.actor, { complaint: 'Misfire under load', assigneeId: w.users.technician.id });
+	jobId = job.id as string;
+});
+
+describe('upload', () => {
+	it('stores the photo and a thumbnail under unguessable keys of the workshop, then the record', async () => {
+		const bytes = await jpeg();
+		const id = uuidv7();
+		const r = await upload(as.technician, id, bytes, { jobId, sha256: sha(bytes), caption: 'Cracked boot, cylinder 3' });
+		const body = await r.json();
+		expect(r.status, JSON.stringify(body)).toBe(201);
+		expect(body.photo).toMatchObject({ id, jobId, caption: 'Cracked boot, cylinder 3', sha256: sha(bytes), contentType: 'image/jpeg', bytes: bytes.length, width: 1200, height: 900 });
+		expect(body.photo.objectKey).toBeUndefined();
+		const [row] = await rows('SELECT object_key, thumb_key FROM photos WHERE id = ?', id);
+		const key = String(row.object_key);
+		expect(key.startsWith(`workshops/${w.workshop.id}/photos/`)).toBe(true);
+		// 24 random bytes in base64url: 32 characters nobody can guess.
+		expect(key.split('/').pop()!.replace(/\.jpg$/, '')).toMatch(/^[A-Za-z0-9_-]{32}$/);
+		expect(await headObject(key)).toMatchObject({ bytes: bytes.length, sha256: sha(bytes) });
+		expect(sha((await getObject(key))!)).toBe(sha(bytes));
+		const thumb = await sharp((await getObject(String(row.thumb_key)))!).metadata();
+		expect(thumb.format).toBe('jpeg');
+		expect(Math.max(thumb.width!, thumb.height!)).toBe(320);
+
+		// The same photo sent again (a retry after a lost answer) is the same photo.
+		const again = await upload(as.technician, id, bytes, { jobId, sha256: sha(bytes) });
+		expect(again.status).toBe(200);
+		expect((await rows('SELECT id FROM photos WHERE id = ?', id)).length).toBe(1);
+		// The lead's phone gets the record by pull, without where it is stored.
+		const { changes } = await pullAll(as.lead);
+		const pulled = changes.find((c) => c.entity === 'photo' && c.entityId === id);
+		expect(pulled?.record).toMatchObject({ jobId, sha256: sha(bytes) });
+		expect(pulled?.record).not.toHaveProperty('objectKey');
+		// The job's list on the lead's desk.
+		const list = await (await as.lead.get(`/api/jobs/${jobId}/photos`)).json();
+		expect(list.photos.map((p: { id: string }) => p.id)).toContain(id);
+	});
+
+	it('accepts PNG and WebP by their content', async () => {
+		for (const [fmt, type] of [['png', 'image/png'], ['webp', 'image/webp']] as const) {
+			const bytes = await sharp({ create: { width: 64, height: 48, channels: 3, background: '#556677' } })[fmt]().toBuffer();
+			// Sent with a misleading declared type: the content decides.
+			const r = await upload(as.technician, uuidv7(), bytes, { jobId, sha256: sha(bytes) }, 'application/octet-stream');
+			expect(r.status).toBe(201);
+			expect((await r.json()).photo.contentType).toBe(type);
+		}
+	});
+
+	it('refuses a photo whose SHA-256 does not match, and keeps no record', async () => {
+		const bytes = await jpeg(400, 300);
+		const id = uuidv7();
+		const damaged = Buffer.from(bytes);
+		damaged[damaged.length - 10] ^= 0xff;
+		await expectError(await upload(as.technician, id, damaged, { jobId, sha256: sha(bytes) }), 400, 'checksum_mismatch');
+		expect(await rows('SELECT id FROM photos WHERE id = ?', id)).toEqual([]);
+	});
+
+	it('refuses what is not a JPEG, PNG or WebP by its content, whatever its declared type', async () => {
+		const pdf = Buffer.from('%PDF-1.4\n1 0 obj << /Type /Catalog >> endobj\ntrailer\n%%EOF\n');
+		const gif = await sharp({ create: { width: 10, height: 10, channels: 3, background: '#000' } }).gif().toBuffer();
+		for (const bytes of [pdf, gif]) {
+			const e = await expectError(await upload(as.technician, uuidv7(), bytes, { jobId, sha256: sha(bytes) }, 'image/jpeg'), 415, 'unsupported_type');
+			expect(e.message).toMatch(/JPEG, PNG or WebP/);
+		}
+	});
+
+	it('refuses more than 10 MB with 413', async () => {
+		const big = Buffer.alloc(10 * 1024 * 1024 + 1, 0x41);
+		big.set([0xff, 0xd8, 0xff, 0xe0]);
+		await expectError(await upload(as.technician, uuidv7(), big, { jobId, sha256: sha(big) }), 413, 'too_large');
+	});
+
+	it('names the field that is missing or wrong', async () => {
+		const bytes = await jpeg(100, 100);
+		const e = await expectError(await upload(as.technician, uuidv7(), bytes, { jobId }), 400, 'invalid');
+		expect(Object.keys(e.fields!)).toContain('sha256');
+	});
+
+	it('refuses a job of another workshop, or one the technician does not see, as not found', async () => {
+		const bytes = await jpeg(200, 100);
+		await expectError(await upload(as.otherLead, uuidv7(), bytes, { jobId, sha256: sha(bytes) }), 404, 'not_found');
+		await expectError(await upload(as.apprentice, uuidv7(), bytes, { jobId, sha256: sha(bytes) }), 404, 'not_found');
+	});
+});
+
+describe('seeing a photo', () => {
+	let id: string;
+	let bytes: Buffer;
+	beforeAll(async () => {
+		bytes = await jpeg(640, 480, 90);
+		id = uuidv7();
+		expect((await upload(as.technician, id, bytes, { jobId, sha256: sha(bytes) })).status).toBe(201);
+	});
+
+	it('gives members who may open the job the bytes and a download address; another workshop gets 404', async () => {
+		const full = await as.lead.get(`/api/photos/${id}/file?size=full`, 'image/*');
+		expect(full.status).toBe(200);
+		expect(sha(Buffer.from(await full.arrayBuffer()))).toBe(sha(bytes));
+		const thumb = await as.technician.get(`/api/photos/${id}/file`, 'image/*');
+		expect((await sharp(Buffer.from(await thumb.arrayBuffer())).metadata()).width).toBe(320);
+		await expectError(await as.otherLead.get(`/api/photos/${id}`), 404, 'not_found');
+		await expectError(await as.otherLead.get(`/api/photos/${id}/file?size=full`), 404, 'not_found');
+		await expectError(await as.otherLead.get(`/api/jobs/${jobId}/photos`), 404, 'not_found');
+		await expectError(await as.apprentice.get(`/api/photos/${id}`), 404, 'not_found');
+	});
+
+	it('gives a download address that works until it expires (PHOTO_URL_SECONDS = 2 in the tests)', async () => {
+		const r = await as.lead.get(`/api/photos/${id}`);
+		const links = await r.json();
+		expect(r.status).toBe(200);
+		expect(new Date(links.expiresAt).getTime() - Date.now()).toBeLessThanOrEqual(2000);
+		const now = await fetch(links.url);
+		expect(now.status).toBe(200);
+		expect(sha(Buffer.from(await now.arrayBuffer()))).toBe(sha(bytes));
+		await new Promise((r) => setTimeout(r, 3100));
+		const later = await fetch(links.url);
+		await later.arrayBuffer();
+		expect(later.status).toBe(403);
+	});
+});
+
+describe('marks and cleanup', () => {
+	it('chooses a photo for the customer and removes one; only its author or a lead; objects go after 30 days', async () => {
+		const [a, b] = [await jpeg(300, 200, 60), await jpeg(300, 200, 200)];
+		const [ida, idb] = [uuidv7(), uuidv7()];
+		expect((await upload(as.technician, ida, a, { jobId, sha256: sha(a), caption: 'Burnt connector' })).status).toBe(201);
+		expect((await upload(as.technician, idb, b, { jobId, sha256: sha(b) })).status).toBe(201);
+
+		// The lead chooses a for the customer from the desk.
+		expect((await as.lead.json('POST', `/api/photos/${ida}/marks`, { mark: 'for_customer' })).status).toBe(201);
+		await expectError(await as.lead.json('POST', `/api/photos/${ida}/marks`, { mark: 'hidden' }), 400, 'invalid');
+		const chosen = await customerPhotos(w.users.lead.actor, jobId);
+		expect(chosen.map((p) => p.id)).toEqual([ida]);
+		expect(chosen[0].caption).toBe('Burnt connector');
+		expect(chosen[0].src.startsWith('data:image/jpeg;base64,')).toBe(true);
+		// The customer report shows it: in the preview's words and as a picture in the PDF
+		// (read back with poppler's pdfimages and pdftotext, not with project code).
+		const { doc } = await previewReport(w.users.lead.actor, jobId);
+		expect(doc.photos.map((p) => [p.id, p.caption])).toEqual([[ida, 'Burnt connector']]);
+		const dir = mkdtempSync(path.join(tmpdir(), 'fieldbench-photos-'));
+		try {
+			const file = path.join(dir, 'report.pdf');
+			writeFileSync(file, await renderReportPdf(doc, { paper: 'a4' }));
+			const images = execFileSync('pdfimages', ['-list', file], { encoding: 'utf8' }).trim().split('\n').slice(2);
+			expect(images.length).toBe(1);
+			expect(execFileSync('pdftotext', [file, '-'], { encoding: 'utf8' })).toContain('Burnt connector');
+		} finally {
+			rmSync(dir, { recursive: true, force: true });
+		}
+
+		// Another workshop's lead does not find it.
+		await expectError(await as.otherLead.json('POST', `/api/photos/${idb}/marks`, { mark: 'removed' }), 404, 'not_found');
+		// The technician removes b from the phone, through sync; a photo itself never comes by sync.
+		const results = await push(as.technician, 'phone-photos', [
+			create('photo_mark', { photoId: idb, mark: 'removed' }),
+			create('photo', { jobId, sha256: sha(b) })
+		]);
+		expect(results.map((r) => r.status)).toEqual(['applied', 'rejected']);
+		expect(results[1].reason).toBe('invalid');
+		const list = await (await as.lead.get(`/api/jobs/${jobId}/photos`)).json();
+		const ids = list.photos.map((p: { id: string }) => p.id);
+		expect(ids).toContain(ida);
+		expect(ids).not.toContain(idb);
+		await expectError(await as.lead.get(`/api/photos/${idb}/file`), 404, 'not_found');
+		const { changes } = await pullAll(as.lead);
+		expect(changes.find((c) => c.entity === 'photo_mark' && c.record?.photoId === idb)?.record).toMatchObject({ mark: 'removed' });
+
+		// The cleanup job: nothing is deleted before 30 days, b's objects after.
+		const [row] = await rows('SELECT object_key, thumb_key FROM photos WHERE id = ?', idb);
+		expect(await purgeRemovedPhotos(new Date(Date.now() + 29 * 86_400_000))).toBe(0);
+		expect(await headObject(String(row.object_key))).not.toBeNull();
+		expect(await purgeRemovedPhotos(new Date(Date.now() + 31 * 86_400_000))).toBeGreaterThanOrEqual(1);
+		expect(await headObject(String(row.object_key))).toBeNull();
+		expect(await headObject(String(row.thumb_key))).toBeNull();
+		const [ra] = await rows('SELECT object_key FROM photos WHERE id = ?', ida);
+		expect(await headObject(String(ra.object_key))).not.toBeNull();
+	});
+
+	it('lets neither an apprentice nor another technician mark a photo they did not take', async () => {
+		const bytes = await jpeg(120, 90);
+		const id = uuidv7();
+		expect((await upload(as.technician, id, bytes, { jobId, sha256: sha(bytes) })).status).toBe(201);
+		// Reassigned to the apprentice: the apprentice sees the job but did not take the photo.
+		const job = (await jobs.read(w.users.lead.actor, jobId)) as { version: number };
+		await jobs.update(w.users.lead.actor, jobId, job.version, { assigneeId: w.users.apprentice.id });
+		const e = await expectError(await as.apprentice.json('POST', `/api/photos/${id}/marks`, { mark: 'removed' }), 403, 'forbidden');
+		expect(e.message).toMatch(/took the photo or a workshop lead/);
+		await jobs.update(w.users.lead.actor, jobId, job.version + 1, { assigneeId: w.users.technician.id });
+	});
+});
