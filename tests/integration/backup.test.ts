@@ -120,7 +120,7 @@ describe('backups', () => {
 			restoreDatabase(file, restored, { replace: true });
 			const q = (sql: string) => rootQuery(sql).trim();
 			const last = Number(q(`SELECT last_seq FROM \`${restored}\`.change_counters WHERE workshop_id = '${DEMO_WORKSHOP.id}'`));
-			const tables = ['changes', 'readings', 'spark_tests', 'swap_tests', 'signoffs'];
+			const tables = ['changes', 'readings', 'spark_tests', 'swap_tests', 'signoffs', 'circuit_tests'];
 			const seqs = q(tables.map((t) => `SELECT seq FROM \`${restored}\`.${t} WHERE workshop_id = '${DEMO_WORKSHOP.id}'`).join(' UNION ALL '))
 				.split('\n')
 				.map(Number)

@@ -157,7 +157,7 @@ const pushBodyArb = fc.record({
 	ops: fc.array(
 		fc.record({
 			opId: fc.oneof(fc.constant(null).map(() => uuidv7()), fc.string()),
-			entity: fc.oneof(fc.constantFrom('customer', 'vehicle', 'job', 'test', 'component', 'sheet', 'reading', 'signoff', 'swap_test', 'photo', 'spark_test', 'photo_mark'), fc.string()),
+			entity: fc.oneof(fc.constantFrom('customer', 'vehicle', 'job', 'test', 'component', 'sheet', 'reading', 'signoff', 'swap_test', 'photo', 'spark_test', 'photo_mark', 'circuit_test'), fc.string()),
 			entityId: fc.oneof(fc.constant(null).map(() => uuidv7()), idArb('job'), idArb('test')),
 			kind: fc.constantFrom('create', 'patch', 'delete', 'merge'),
 			baseVersion: fc.oneof(fc.nat(5), fc.integer(), fc.constant(-1)),

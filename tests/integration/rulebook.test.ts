@@ -384,7 +384,10 @@ const ACTIONS: Action[] = [
 			['add a spark test on one’s own job', 'spark_test', false, 'own', EVERYONE],
 			['add a spark test on a hybrid', 'spark_test', true, 'own', STAFF],
 			['add a swap test on one’s own job', 'swap_test', false, 'own', EVERYONE],
-			['add a swap test on a hybrid', 'swap_test', true, 'own', STAFF]
+			['add a swap test on a hybrid', 'swap_test', true, 'own', STAFF],
+			['add a battery test on one’s own job', 'circuit_test', false, 'own', EVERYONE],
+			['add a battery test on someone else’s job', 'circuit_test', false, 'other', LEADS],
+			['add a battery test on a hybrid', 'circuit_test', true, 'own', STAFF]
 		] as const
 	).map(
 		([name, entity, hybrid, whose, allowed]): Action => ({
@@ -401,11 +404,13 @@ const ACTIONS: Action[] = [
 						? { testId: t.test.id, checkKey: 'primary', samples: [{ value: 0.42, unit: 'Ω' }] }
 						: entity === 'spark_test'
 							? { jobId: t.job.id, position: '1', gapMm: 10, outcome: 'go' }
-							: { jobId: t.job.id, fromPosition: '1', toPosition: '3', beforeCounts: { 1: 9 }, afterCounts: { 3: 8 }, conclusion: 'fault_followed' },
+							: entity === 'circuit_test'
+								? { jobId: t.job.id, kind: 'battery', inputs: { batteryType: 'flooded', tempC: 20, restV: 12.6, surfaceGone: true } }
+								: { jobId: t.job.id, fromPosition: '1', toPosition: '3', beforeCounts: { 1: 9 }, afterCounts: { 3: 8 }, conclusion: 'fault_followed' },
 					t.id
 				),
 			landed: async (t, r) => {
-				const table = { reading: 'readings', spark_test: 'spark_tests', swap_test: 'swap_tests' }[entity];
+				const table = { reading: 'readings', spark_test: 'spark_tests', swap_test: 'swap_tests', circuit_test: 'circuit_tests' }[entity];
 				const row = await rowOf(table, t.id);
 				return !!row && row.created_by === idOf(r);
 			}

@@ -11,7 +11,7 @@ describe('the demo seed', () => {
 		expect(users.map((u) => u.role).sort()).toEqual(['apprentice', 'lead', 'owner', 'technician']);
 		const jobs = await Job.findAll({ where: { workshopId: DEMO_WORKSHOP.id, status: 'open' } });
 		const assignees = jobs.map((j) => users.find((u) => u.id === j.assigneeId)?.role).sort();
-		expect(assignees).toEqual(['apprentice', 'apprentice', 'technician']);
+		expect(assignees).toEqual(['apprentice', 'apprentice', 'technician', 'technician']);
 		const tech = users.find((u) => u.role === 'technician')!;
 		expect(await verifyPassword(tech.passwordHash, DEMO_PASSWORD)).toBe(true);
 		expect(DEMO_USERS.every((d) => d.email.endsWith('.example'))).toBe(true);
@@ -62,5 +62,29 @@ describe('the demo seed', () => {
 		const before = await counts();
 		expect(await seedDemo()).toBe(0);
 		expect(await counts()).toEqual(before);
+	});
+});
+
+describe('the demo no-start job', () => {
+	it('has the invented battery, alternator, relay and crank sensor with approved sheets, and its tests judged by the server', async () => {
+		await seedDemo();
+		const { NO_START_JOB, NO_START_PARTS } = await import('../../src/lib/server/seed/demo-circuits');
+		const { db } = await import('../../src/lib/server/db');
+		const { QueryTypes } = await import('sequelize');
+		const job = await Job.findOne({ where: { id: NO_START_JOB.id } });
+		expect(job?.complaint).toMatch(/No start/);
+		const kinds = (await Component.findAll({ where: { id: NO_START_PARTS.map((p) => p.id) } })).map((c) => c.kind).sort();
+		expect(kinds).toEqual(['alternator', 'battery', 'crank_cam_sensor', 'relay']);
+		const rows = await db().query<{ kind: string; server_verdict: string }>('SELECT kind, server_verdict FROM circuit_tests WHERE job_id = ? ORDER BY seq', {
+			replacements: [NO_START_JOB.id],
+			type: QueryTypes.SELECT
+		});
+		// 12.08 V at 8 °C → 12.16 V at 26.7 °C on the flooded table (EFB; BCI): 39 % → charge and re-test; 240 mA against 50 mA → over.
+		expect(rows).toEqual([
+			{ kind: 'battery', server_verdict: 'charge_retest' },
+			{ kind: 'parasitic', server_verdict: 'high' }
+		]);
+		await seedDemo(); // idempotent
+		expect(await db().query('SELECT id FROM circuit_tests WHERE job_id = ?', { replacements: [NO_START_JOB.id], type: QueryTypes.SELECT })).toHaveLength(2);
 	});
 });

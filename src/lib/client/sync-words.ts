@@ -18,7 +18,8 @@ export const ENTITY_WORDS: Record<string, string> = {
 	photo: 'Photo',
 	photo_mark: 'Photo removal or choice',
 	spark_test: 'Spark test',
-	quote: 'Quote'
+	quote: 'Quote',
+	circuit_test: 'Battery or circuit test'
 };
 
 export const KIND_WORDS: Record<string, string> = { create: 'new', patch: 'change', delete: 'removal' };

@@ -20,6 +20,9 @@ export type CautionId =
 	| 'hot_after_run'
 	| 'spark'
 	| 'swap_engine_off'
+	| 'battery_gas'
+	| 'eye_protection'
+	| 'clamp_order'
 	| `part_${PartCaution}`;
 
 export type CautionLine = { id: CautionId; title: string; text: string; needsTap: boolean };
@@ -83,6 +86,21 @@ const LINES: Record<Exclude<CautionId, `part_${string}`>, Omit<CautionLine, 'id'
 		text: 'Tens of kilovolts: use an insulated, earthed spark tester, keep hands clear, never fire a coil open-circuit. Take out the injector or fuel-pump fuse (or unplug that cylinder’s injector) so the cylinder is not flooded; no fuel vapour nearby. People with pacemakers stay clear.',
 		needsTap: true
 	},
+	battery_gas: {
+		title: 'Explosive gas',
+		text: 'A battery gives off hydrogen, which explodes: no sparks, flames or smoking near the vents; switch the tester off before its clamps go on or come off, and ventilate.',
+		needsTap: true
+	},
+	eye_protection: {
+		title: 'Eye protection',
+		text: 'Wear eye protection and gloves: the acid burns, and a battery can burst.',
+		needsTap: false
+	},
+	clamp_order: {
+		title: 'Clamp order',
+		text: 'Tester: red clamp on + first, then black on −; off in the reverse order. Disconnecting the battery: earth (−) off first and back on last.',
+		needsTap: false
+	},
 	swap_engine_off: {
 		title: 'Engine off to move a coil',
 		text: 'Never pull a coil off with the engine running: switch off, then move it.',
@@ -97,7 +115,7 @@ const partLine = (c: PartCaution): CautionLine => ({
 	needsTap: false
 });
 
-export type CautionStep = 'start' | 'check' | 'spark' | 'swap';
+export type CautionStep = 'start' | 'check' | 'spark' | 'swap' | 'circuit';
 export type CautionContext = {
 	step: CautionStep;
 	/** Hybrid or electric vehicle. */
@@ -110,6 +128,8 @@ export type CautionContext = {
 	quantity?: string | null;
 	/** The part has just run (hot). */
 	hot?: boolean;
+	/** A circuit test's step: what it involves (battery work, running or cranking engine, …). */
+	circuit?: readonly ('battery' | 'running' | 'cranking' | 'in_series' | 'back_probe' | 'key_off')[];
 };
 
 const RUNNING = new Set(['key_on', 'cranking', 'idle', 'under_load']);
@@ -128,6 +148,14 @@ function idsFor(c: CautionContext): CautionId[] {
 		if (!resistance && c.quantity !== 'visual') ids.push('back_probe');
 		if (c.quantity === 'current') ids.push('in_series');
 		if (!resistance && (c.condition === 'cranking' || c.condition === 'under_load')) ids.push('battery');
+	}
+	if (c.step === 'circuit') {
+		const has = new Set(c.circuit ?? []);
+		if (has.has('battery')) ids.push('battery_gas', 'eye_protection', 'clamp_order');
+		if (has.has('key_off')) ids.push('key_off');
+		if (has.has('back_probe')) ids.push('back_probe');
+		if (has.has('in_series')) ids.push('in_series');
+		if (has.has('running') || has.has('cranking')) ids.push('running');
 	}
 	if (c.step === 'spark') ids.push('spark');
 	if (c.step === 'swap') ids.push('swap_engine_off');

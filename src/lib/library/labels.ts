@@ -10,6 +10,8 @@ export const KIND_LABELS: Record<ComponentKind, string> = {
 	relay: 'Relay',
 	glow_plug: 'Glow plug',
 	heater_element: 'Heater element',
+	battery: 'Battery',
+	alternator: 'Alternator',
 	other: 'Other'
 };
 

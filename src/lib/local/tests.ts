@@ -164,3 +164,19 @@ export async function signOffSummary(db: LocalDb, jobIds: string[], me: Me): Pro
 	}
 	return out;
 }
+
+/** A circuit test (battery, draw, drop, charging, relay, sensor) as the job page lists it. */
+export type CircuitTestItem = { id: string; kind: string; verdict: string; summary: string; pending: boolean; at: string };
+
+/** The job's circuit tests on this phone, newest first: the server's result once it has one. */
+export async function readCircuitTests(db: LocalDb, jobId: string): Promise<CircuitTestItem[]> {
+	const under = await listByJob(db, jobId);
+	return under
+		.filter((r) => r.entity === 'circuit_test')
+		.map((r) => {
+			const d = r.data as Record<string, unknown>;
+			const res = (d.serverResult ?? d.deviceResult ?? {}) as { verdict?: string; summary?: string };
+			return { id: r.id, kind: String(d.kind), verdict: res.verdict ?? 'cant_tell', summary: res.summary ?? '', pending: r.pending > 0, at: String(d.createdAt ?? r.updatedAt) };
+		})
+		.sort((a, b) => b.at.localeCompare(a.at));
+}

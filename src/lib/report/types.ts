@@ -50,6 +50,8 @@ export type ComponentKindName =
 	| 'relay'
 	| 'glow_plug'
 	| 'heater_element'
+	| 'battery'
+	| 'alternator'
 	| 'other';
 
 export type TestFacts = {

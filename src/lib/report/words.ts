@@ -45,6 +45,8 @@ const KIND_NAME: Record<ComponentKindName, string> = {
 	relay: 'Relay',
 	glow_plug: 'Glow plug',
 	heater_element: 'Heater element',
+	battery: 'Battery',
+	alternator: 'Alternator',
 	other: 'Part'
 };
 /** What the customer calls one of it in a sentence. */
@@ -56,6 +58,8 @@ const KIND_NOUN: Record<ComponentKindName, string> = {
 	relay: 'relay',
 	glow_plug: 'glow plug',
 	heater_element: 'heater element',
+	battery: 'battery',
+	alternator: 'alternator',
 	other: 'part'
 };
 

@@ -25,6 +25,8 @@ export const COMPONENT_KINDS = [
 	'relay',
 	'glow_plug',
 	'heater_element',
+	'battery',
+	'alternator',
 	'other'
 ] as const;
 export type ComponentKind = (typeof COMPONENT_KINDS)[number];

@@ -2,6 +2,7 @@
 import { z } from 'zod';
 import { optionalText, uuidRef } from './common';
 import { SIGNOFF_DECISIONS, SIGNOFF_MODES } from '../tests/signoff';
+import { CIRCUIT_KINDS, circuitInputs } from '../flow/circuit';
 
 export const sample = z.object({
 	value: z.union([z.number().finite(), z.literal('OL')]),
@@ -53,6 +54,20 @@ export const swapTestCreate = z.object({
 	beforeCounts: counts,
 	afterCounts: counts,
 	conclusion: z.enum(['fault_followed', 'fault_stayed', 'inconclusive']),
+	note: optionalText(500)
+});
+
+/**
+ * A circuit test (battery, parasitic draw, voltage drop, charging, relay, crank or cam sensor):
+ * its kind, the figures typed (limits included) and what the phone showed; the server judges
+ * the same figures again with `judgeCircuit` and keeps both.
+ */
+export const circuitTestCreate = z.object({
+	jobId: uuidRef,
+	testId: uuidRef.nullable().optional(),
+	kind: z.enum(CIRCUIT_KINDS),
+	inputs: circuitInputs,
+	deviceResult: z.object({ verdict: z.string().max(20) }).passthrough().nullable().optional(),
 	note: optionalText(500)
 });
 

@@ -23,7 +23,8 @@ export const APPEND_ONLY = [
 	'swap_test',
 	'photo',
 	'spark_test',
-	'photo_mark'
+	'photo_mark',
+	'circuit_test'
 ] as const;
 /** The closed list of entities that can travel through sync. */
 export const ENTITIES = [...MUTABLE_ENTITIES, ...APPEND_ONLY] as const;

@@ -23,9 +23,10 @@ const issuePath = (r: { success: boolean; error?: { issues: { path: PropertyKey[
 	r.error ? formatZodPath(r.error.issues[0].path) : null;
 
 describe('entities', () => {
-	it('lists exactly the seven mutable and six append-only entities', () => {
+	it('lists exactly the seven mutable and seven append-only entities', () => {
 		expect([...ENTITIES].sort()).toEqual(
 			[
+				'circuit_test',
 				'component',
 				'customer',
 				'job',
@@ -43,12 +44,12 @@ describe('entities', () => {
 		);
 	});
 
-	it.each(['reading', 'signoff', 'swap_test', 'photo', 'spark_test', 'photo_mark'] as Entity[])(
+	it.each(['reading', 'signoff', 'swap_test', 'photo', 'spark_test', 'photo_mark', 'circuit_test'] as Entity[])(
 		'treats %s as append-only',
 		(entity) => expect(isAppendOnly(entity)).toBe(true)
 	);
 
-	it.each(['customer', 'vehicle', 'job', 'test', 'component', 'sheet'] as Entity[])(
+	it.each(['customer', 'vehicle', 'job', 'test', 'component', 'sheet', 'quote'] as Entity[])(
 		'treats %s as mutable',
 		(entity) => expect(isAppendOnly(entity)).toBe(false)
 	);

@@ -10,7 +10,8 @@ export const APPEND_TABLES = {
 	swap_test: 'swap_tests',
 	signoff: 'signoffs',
 	photo: 'photos',
-	photo_mark: 'photo_marks'
+	photo_mark: 'photo_marks',
+	circuit_test: 'circuit_tests'
 } as const;
 export type StoredAppendEntity = keyof typeof APPEND_TABLES;
 export type AppendTable = (typeof APPEND_TABLES)[StoredAppendEntity];
@@ -33,7 +34,7 @@ export function groupByTable<T, V>(
 }
 
 const camel = (s: string) => s.replace(/_([a-z])/g, (_m, c: string) => c.toUpperCase());
-const JSON_COLUMNS = new Set(['samples', 'visual', 'device_result', 'server_result', 'before_counts', 'after_counts']);
+const JSON_COLUMNS = new Set(['samples', 'visual', 'device_result', 'server_result', 'before_counts', 'after_counts', 'inputs']);
 /** Never sent: the workshop, feed bookkeeping and where a photo's bytes are stored. */
 const HIDDEN = new Set(['workshop_id', 'op_id', 'seq', 'object_key', 'thumb_key', 'purged_at']);
 

@@ -3,7 +3,7 @@
  * figures are all made up). Idempotent: fixed ids, and each record is created only when
  * missing, through the same services as every other write.
  */
-import { Op } from 'sequelize';
+import { Op, QueryTypes } from 'sequelize';
 import type { Actor } from '../auth/types';
 import { db } from '../db';
 import { Component, Customer, Job, SpecSheet, Test, User, Vehicle, Workshop } from '../db/models';
@@ -14,6 +14,7 @@ import { vehicles } from '../services/vehicles';
 import { createUser, createWorkshop } from '../services/workshops';
 import { DEMO_TEST_ID, seedDemoTest } from './demo-tests';
 import { seedDemoPricing } from './demo-pricing';
+import { NO_START_BATTERY_TEST, NO_START_JOB, NO_START_PARTS, NO_START_SHEETS, seedNoStartTests } from './demo-circuits';
 import { readReportSettings, saveReportSettings } from '../reports/settings';
 
 export const DEMO_PASSWORD = 'bench-demo-2026';
@@ -137,7 +138,8 @@ const JOBS = [
 		complaint: 'Hybrid: engine misfires when it starts by itself in READY mode; warning light on.',
 		location: 'Workshop bay 1 (high-voltage bay)',
 		codesBefore: [{ code: 'P0302', text: 'Cylinder 2 misfire detected' }]
-	}
+	},
+	{ ...NO_START_JOB, assigneeId: DEMO_USERS[2].id }
 ];
 
 const COIL = {
@@ -304,10 +306,10 @@ export async function seedDemo(): Promise<number> {
 			({ id, number, ...j }) =>
 				[Job, id, () => jobs.create(lead, j, { id, serverFields: { number } })] as Step
 		),
-		...[COIL, PACK, AIRBAG].map(
+		...[COIL, PACK, AIRBAG, ...NO_START_PARTS].map(
 			({ id, ...c }) => [Component, id, () => components.create(lead, c, { id })] as Step
 		),
-		...[COIL_SHEET, PACK_SHEET].map(
+		...[COIL_SHEET, PACK_SHEET, ...NO_START_SHEETS].map(
 			({ id, ...s }) =>
 				[
 					SpecSheet,
@@ -351,5 +353,11 @@ export async function seedDemo(): Promise<number> {
 		made++;
 	}
 	made += await seedDemoPricing(lead);
+	const [done] = await db().query<{ n: number }>('SELECT COUNT(*) AS n FROM circuit_tests WHERE id = ?', { replacements: [NO_START_BATTERY_TEST], type: QueryTypes.SELECT });
+	if (!Number(done.n)) {
+		const t = DEMO_USERS[2];
+		await seedNoStartTests({ id: t.id, workshopId: DEMO_WORKSHOP.id, workshopName: DEMO_WORKSHOP.name, email: t.email, name: t.name, role: t.role });
+		made++;
+	}
 	return made;
 }

@@ -79,3 +79,42 @@ export async function oneTest(actor: Actor, testId: string, locale = 'en-GB') {
 		swaps: all.swaps
 	};
 }
+
+/** A circuit test as the office page shows it: the server's result, and the phone's when it differs. */
+export type CircuitTestView = {
+	id: string;
+	kind: string;
+	verdict: string;
+	summary: string;
+	lines: { label: string; verdict: string; text: string }[];
+	working: string[];
+	deviceVerdict: string | null;
+	mismatch: boolean;
+	by: string | null;
+	at: string;
+};
+
+/** The circuit tests (battery, draw, drop, charging, relay, sensor) of a job the actor may open, newest first. */
+export async function jobCircuitTests(actor: Actor, jobId: string): Promise<CircuitTestView[]> {
+	await seenJob(actor, jobId);
+	const rows = (await appendRows(actor, 'circuit_tests', 'circuit_test', jobId)) as Record<string, unknown>[];
+	const users = new Map((await User.findAll({ where: { workshopId: actor.workshopId }, attributes: ['id', 'name'] })).map((u) => [u.id, u.name]));
+	return rows
+		.map((r) => {
+			const server = r.serverResult as { verdict: string; summary: string; lines: CircuitTestView['lines']; working: string[] };
+			const device = r.deviceResult as { verdict?: string } | null;
+			return {
+				id: r.id as string,
+				kind: r.kind as string,
+				verdict: server.verdict,
+				summary: server.summary,
+				lines: server.lines ?? [],
+				working: server.working ?? [],
+				deviceVerdict: device?.verdict ?? null,
+				mismatch: Boolean(r.mismatch),
+				by: users.get(r.createdBy as string) ?? null,
+				at: new Date(r.createdAt as string).toISOString()
+			};
+		})
+		.reverse();
+}

@@ -18,7 +18,8 @@
 import type { Transaction } from 'sequelize';
 import { bandsFor, evaluateReading, meterFor, rangeQuantityOf, sameResult, type CheckSpec, type TemperatureSnapshot, type VisualFinding } from '../../flow/reading';
 import { rangeResolves } from '../../flow/reading';
-import { readingCreate, signoffCreate, sparkTestCreate, swapTestCreate } from '../../schemas/records';
+import { circuitTestCreate, readingCreate, signoffCreate, sparkTestCreate, swapTestCreate } from '../../schemas/records';
+import { judgeCircuit, sameCircuitResult, type CircuitKind } from '../../flow/circuit';
 import type { Op, PushResult, Reason } from '../../sync/protocol';
 import { stringifyNumbers } from '../../sync/json';
 import type { Actor } from '../auth/types';
@@ -84,12 +85,13 @@ const COLUMNS: Record<AppendTable, readonly string[]> = {
 	signoffs: [...BASE, 'mode', 'decision', 'note'],
 	spark_tests: [...BASE, 'note', 'position', 'gap_mm', 'outcome'],
 	swap_tests: [...BASE, 'note', 'from_position', 'to_position', 'before_counts', 'after_counts', 'conclusion'],
+	circuit_tests: [...BASE, 'note', 'kind', 'inputs', 'device_result', 'server_result', 'mismatch', 'server_verdict'],
 	// Photos are written by their upload (`photos/service.ts`), never by a push.
 	photos: [...BASE],
 	photo_marks: [...BASE, 'photo_id', 'mark']
 };
 
-const SCHEMAS = { reading: readingCreate, spark_test: sparkTestCreate, swap_test: swapTestCreate, signoff: signoffCreate, photo_mark: photoMarkFields };
+const SCHEMAS = { reading: readingCreate, spark_test: sparkTestCreate, swap_test: swapTestCreate, signoff: signoffCreate, photo_mark: photoMarkFields, circuit_test: circuitTestCreate };
 const reject = (op: Op, reason: Reason, message?: string) =>
 	({ opId: op.opId, status: 'rejected', reason, ...(message ? { message } : {}) }) as PushResult;
 
@@ -217,6 +219,23 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 		const refusal = refuseAppend(ctx.actor, op.entity, jobs.get(f.jobId as string));
 		if (refusal) return reject(op, refusal.reason, refusal.message);
 		const [jobId, testId, note] = [f.jobId, f.testId ?? null, f.note ?? null];
+		if (op.entity === 'circuit_test') {
+			// The server's own judgement of the same figures; the phone's is kept beside it.
+			let server: ReturnType<typeof judgeCircuit>;
+			try {
+				server = judgeCircuit(f.kind as CircuitKind, f.inputs as never);
+			} catch {
+				return reject(op, 'invalid', 'inputs: figures that cannot be judged');
+			}
+			const device = f.deviceResult as { verdict: string } | null | undefined;
+			const mismatch = device != null && !sameCircuitResult(device, server);
+			return {
+				op,
+				table: 'circuit_tests',
+				row: row(jobId, testId, note, f.kind, JSON.stringify(f.inputs), device ? JSON.stringify(device) : null, JSON.stringify(server), mismatch ? 1 : 0, server.verdict),
+				same: ''
+			};
+		}
 		if (op.entity === 'spark_test') {
 			return { op, table: 'spark_tests', row: row(jobId, testId, note, f.position, f.gapMm, f.outcome), same: '' };
 		}

@@ -10,7 +10,7 @@ import { mailConfig } from '$lib/server/mail/config';
 import { mayChangeReportSettings, mayReadCaughtMail, maySendReport, mayWithdrawReport } from '$lib/server/reports/rules';
 import { reportsOfJob, withdrawReport } from '$lib/server/reports/service';
 import { readReportSettings } from '$lib/server/reports/settings';
-import { jobTests } from '$lib/server/services/test-display';
+import { jobCircuitTests, jobTests } from '$lib/server/services/test-display';
 import { loadJobFacts } from '$lib/server/services/job-facts';
 import { decideTest } from '$lib/server/services/signoffs';
 import { refuseRetestedOk, refuseClose } from '$lib/rules';
@@ -31,12 +31,13 @@ export async function load(event) {
 		if (e instanceof NotFoundError) error(404, 'No such job, or it is not assigned to you');
 		throw e;
 	});
-	const [history, tests, facts, photos, people] = await Promise.all([
+	const [history, tests, facts, photos, people, circuits] = await Promise.all([
 		jobs.statusHistory(actor, id),
 		jobTests(actor, id),
 		loadJobFacts(actor, id),
 		jobPhotos(actor, id),
-		User.findAll({ where: { workshopId: actor.workshopId }, attributes: ['id', 'name'] })
+		User.findAll({ where: { workshopId: actor.workshopId }, attributes: ['id', 'name'] }),
+		jobCircuitTests(actor, id)
 	]);
 	return {
 		title: `Job ${job.number}`,
@@ -45,6 +46,7 @@ export async function load(event) {
 		tests,
 		photos,
 		people: Object.fromEntries(people.map((u) => [u.id, u.name])),
+		circuits,
 		next: NEXT_STATUS[job.status],
 		/** What the work must still show before these moves (null: nothing missing). */
 		missing: { retested_ok: refuseRetestedOk(facts), closed: refuseClose(facts) },
