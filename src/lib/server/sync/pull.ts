@@ -25,11 +25,14 @@
 import { QueryTypes, Op as SqlOp, type ModelStatic, type Model } from 'sequelize';
 import type { SessionUser } from '../auth/types';
 import { db } from '../db';
-import { ValidationError } from '../errors';
-import type { Change } from '../../sync/protocol';
+import { NotFoundError, ValidationError } from '../errors';
+import { MAX_PULL_LIMIT_V2, type Change } from '../../sync/protocol';
+import { Job } from '../db/models';
+import { isLead } from '../../roles';
+import { seesJob } from '../../rules';
 import { APPEND_TABLES, appendRecord } from '../db/append-tables';
 import { AGGREGATES } from './registry';
-import { scopeOf, visibleWithoutJob, windowsOf, type FeedRow, type Scope } from './scope';
+import { LIBRARY, scopeOf, visibleWithoutJob, windowsOf, type FeedRow, type Scope } from './scope';
 
 /** How long the change feed keeps its rows; an older cursor gets a snapshot (v2). */
 export const FEED_DAYS = Number(process.env.SYNC_FEED_DAYS ?? 90);
@@ -198,7 +201,7 @@ function decodeToken(s: string, last: number, steps: number): Token {
 }
 
 /** One snapshot page from `token` (current records with seq ≤ base for the append-only ones). */
-async function snapshotPage(scope: Scope, token: Token, limit: number) {
+async function snapshotPage(scope: Scope, token: Token, limit: number, include: (s: Step) => boolean = () => true) {
 	const steps = snapshotSteps();
 	const changes: Change[] = [];
 	let { step, after } = token;
@@ -206,7 +209,9 @@ async function snapshotPage(scope: Scope, token: Token, limit: number) {
 		const s = steps[step];
 		const want = limit - changes.length;
 		let got: { id: string; change: Change }[] = [];
-		if (s.kind === 'mutable') {
+		if (!include(s)) {
+			// left out of this read
+		} else if (s.kind === 'mutable') {
 			const where = mutableWhere(s, scope);
 			if (where) {
 				const rows = await s.model.findAll({ where: after ? { ...where, id: { ...(where.id as object), [SqlOp.gt]: after } } : where, order: [['id', 'ASC']], limit: want });
@@ -255,4 +260,36 @@ export async function pullV2(user: SessionUser, cursor: number, limit: number, s
 	const r = reset ? { reset: true as const } : {};
 	if (page.next) return { changes: page.changes, cursor: token.base, more: true, snapshot: page.next, ...r };
 	return done({ changes: page.changes, cursor: token.base, more: token.base < last }, r);
+}
+
+/**
+ * GET /api/sync/jobs/:id: one job with everything under it (its customer and vehicle, every
+ * record with a job, every append-only record), as changes the phone applies — how a lead's
+ * phone opens a job older than its window. A job the caller may not see (the rulebook's
+ * `seesJob`) is not there for them (404).
+ */
+export async function jobOnDemand(user: SessionUser, jobId: string): Promise<{ changes: Change[] }> {
+	const job = await Job.findOne({ where: { id: jobId, workshopId: user.workshopId, deletedAt: { [SqlOp.is]: null } } });
+	if (!job || !seesJob({ role: user.role, userId: user.id }, { assigneeId: job.assigneeId })) throw new NotFoundError();
+	const scope: Scope = {
+		lead: isLead(user),
+		userId: user.id,
+		workshopId: user.workshopId,
+		days: 0,
+		jobs: [job.id],
+		customers: job.customerId ? [job.customerId] : [],
+		vehicles: job.vehicleId ? [job.vehicleId] : []
+	};
+	const library = new Set<string>(LIBRARY);
+	const steps = snapshotSteps();
+	const changes: Change[] = [];
+	let token: Token | null = { base: await lastSeq(user.workshopId), step: 0, after: '' };
+	while (token) {
+		while (token.step < steps.length && library.has(steps[token.step].entity)) token = { ...token, step: token.step + 1, after: '' };
+		if (token.step >= steps.length) break;
+		const page = await snapshotPage(scope, token, MAX_PULL_LIMIT_V2, (s) => !library.has(s.entity));
+		changes.push(...page.changes);
+		token = page.next ? decodeToken(page.next, token.base, steps.length) : null;
+	}
+	return { changes };
 }
