@@ -135,8 +135,7 @@ export async function trimFeed(workshopId: string, days = FEED_DAYS): Promise<nu
 	await db().query('UPDATE change_counters SET floor_seq = GREATEST(floor_seq, ?) WHERE workshop_id = ?', { replacements: [upTo, workshopId] });
 	let removed = 0;
 	for (;;) {
-		const [, meta] = (await db().query('DELETE FROM changes WHERE workshop_id = ? AND seq <= ? LIMIT 10000', { replacements: [workshopId, upTo] })) as [unknown, { affectedRows?: number }];
-		const n = Number(meta?.affectedRows ?? 0);
+		const n = Number(await db().query('DELETE FROM changes WHERE workshop_id = ? AND seq <= ? LIMIT 10000', { replacements: [workshopId, upTo], type: QueryTypes.BULKDELETE }));
 		removed += n;
 		if (n < 10000) return removed;
 	}
