@@ -329,3 +329,21 @@ export function backoffMs(attempt: number, random = Math.random): number {
 	const cap = Math.min(5 * 60_000, 1000 * 2 ** attempt);
 	return Math.round(cap / 2 + (random() * cap) / 2);
 }
+
+/**
+ * A job the phone does not keep (older than its window), fetched with signal and put in
+ * IndexedDB so its page opens; the next sync drops it again. False when it could not be had
+ * (offline, not the caller's, gone).
+ */
+export async function fetchJobOnDemand(db: LocalDb, jobId: string, fetcher: Fetch = (i, o) => fetch(i, o)): Promise<boolean> {
+	try {
+		const r = await fetcher(`/api/sync/jobs/${encodeURIComponent(jobId)}`, { credentials: 'same-origin' });
+		if (!r.ok) return false;
+		const body = (await r.json()) as { changes?: Change[] };
+		if (!Array.isArray(body.changes) || !body.changes.length) return false;
+		await applyChanges(db, body.changes, null);
+		return true;
+	} catch {
+		return false;
+	}
+}
