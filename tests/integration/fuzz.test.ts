@@ -205,7 +205,7 @@ const routes = (): Route[] => [
 	{ kind: 'api', method: 'POST', path: fc.constant('/api/components/csv'), body: fc.oneof(fc.string({ maxLength: 300 }), fc.constantFrom('part_number,kind\nFZ-1,ignition_coil\n', 'a;b;c\n1;2', '"unterminated\n', '\ufeffpart_number\n')), type: fc.constantFrom('text/csv', 'text/plain', 'application/json', '') },
 	{ kind: 'api', method: 'PUT', path: fc.constantFrom('/api/jobs', '/api/me', '/api/sync/push'), body: bodyArb() },
 	{ kind: 'api', method: 'DELETE', path: fc.oneof(p('/api/jobs/:id', 'job'), fc.constant('/api/customers')) },
-	{ kind: 'form', method: 'POST', path: fc.constantFrom('/jobs/new', '/customers/new', '/vehicles/new', '/team?/invite', '/sign-in', '/sign-in?next=%2Fjobs', '/password', '/sign-out') },
+	{ kind: 'form', method: 'POST', path: fc.constantFrom('/jobs/new', '/customers/new', '/vehicles/new', '/team?/invite', '/team?/windows', '/sign-in', '/sign-in?next=%2Fjobs', '/password', '/sign-out') },
 	{ kind: 'form', method: 'POST', path: fc.oneof(p('/jobs/:id?/update', 'job'), p('/jobs/:id?/status', 'job'), p('/jobs/:id?/addCode', 'job'), p('/jobs/:id?/removeCode', 'job'), p('/customers/:id?/update', 'customer'), p('/vehicles/:id?/update', 'vehicle'), p('/jobs/:id?/nothing', 'job')) },
 	{ kind: 'page', method: 'GET', path: withQuery(fc.oneof(p('/jobs/:id', 'job'), p('/customers/:id', 'customer'), p('/vehicles/:id', 'vehicle'), p('/library/:id', 'component'), p('/library/:id/edit', 'component'), p('/library/:id/sheets/:id', 'component', 'sheet'), p('/field/job/:id', 'job'), fc.constantFrom('/jobs', '/jobs/new', '/customers/new', '/vehicles/new', '/team', '/library', '/sign-in', '/shell', '/field'))) }
 ];

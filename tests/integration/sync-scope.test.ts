@@ -16,7 +16,7 @@ import { Job } from '../../src/lib/server/db/models';
 import { components, sheets } from '../../src/lib/server/services/components';
 import { jobs } from '../../src/lib/server/services/jobs';
 import { lastSeq, trimFeed } from '../../src/lib/server/sync/pull';
-import { saveWindows } from '../../src/lib/server/sync/scope';
+import { saveWindows, windowsOf } from '../../src/lib/server/sync/scope';
 import { makeWorkshop, TEST_PASSWORD } from '../helpers/fixtures';
 import { Client } from '../helpers/http';
 import { create, push } from '../helpers/sync';
@@ -251,5 +251,26 @@ describe('pull v2: a phone offline for longer than the feed keeps', () => {
 		expect(stored.map((r) => r.id).sort()).toEqual(readings.map((r) => r.id).sort());
 		expect(await has(phone.db, 'reading', readings[4].id)).toBe(true);
 		expect((await phone.db.get('records', ['reading', readings[4].id]))?.version).toBe(1);
+	});
+});
+
+describe('what phones keep: the team page', () => {
+	it('lets a lead set the windows, says what is wrong in words, and refuses a technician', async () => {
+		const w = await makeWorkshop('Windows form');
+		const lead = await signedIn(w.users.lead.email);
+		expect(await windowsOf(w.workshop.id)).toEqual({ phoneDays: 30, deskDays: 30 });
+		const bad = await lead.form('/team?/windows', { phoneDays: 'ten', deskDays: '400' });
+		expect(bad.status).toBe(400);
+		const text = await bad.text();
+		expect(text).toContain('as a whole number');
+		expect(text).toContain('At most 365 days');
+		expect(await windowsOf(w.workshop.id)).toEqual({ phoneDays: 30, deskDays: 30 });
+		expect((await lead.form('/team?/windows', { phoneDays: '14', deskDays: '60' })).status).toBe(200);
+		expect(await windowsOf(w.workshop.id)).toEqual({ phoneDays: 14, deskDays: 60 });
+		const page = await (await lead.get('/team', 'text/html')).text();
+		expect(page).toContain('What phones keep');
+		const tech = await signedIn(w.users.technician.email);
+		expect((await tech.form('/team?/windows', { phoneDays: '365', deskDays: '365' })).status).toBe(403);
+		expect(await windowsOf(w.workshop.id)).toEqual({ phoneDays: 14, deskDays: 60 });
 	});
 });
