@@ -28,6 +28,7 @@ import { execFileSync, spawn, spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync, openSync } from 'node:fs';
 import path from 'node:path';
+import { mailEnv, startMailServer, stopMailServer } from './mail';
 import { APP_PASSWORD, APP_USER, freePort, portFree, ROOT } from './mariadb';
 
 export const CLUSTER_DIR = path.join(ROOT, '.data', 'cluster');
@@ -388,6 +389,8 @@ export async function startApp(i: number): Promise<void> {
 	if (appRunning(i)) return;
 	const port = s.apps[i];
 	const log = openSync(path.join(CLUSTER_DIR, `app${i + 1}.log`), 'a');
+	// Every app server sends through one fake mail server unless a real one is configured.
+	const mail = process.env.SMTP_HOST ? null : await startMailServer('fieldbench-cluster');
 	const child = spawn(process.execPath, [path.join(ROOT, 'scripts', 'serve.js')], {
 		cwd: ROOT,
 		detached: true,
@@ -405,7 +408,8 @@ export async function startApp(i: number): Promise<void> {
 			DB_PORT: String(s.dbLb),
 			DB_NAME,
 			DB_USER: APP_USER,
-			DB_PASSWORD: APP_PASSWORD
+			DB_PASSWORD: APP_PASSWORD,
+			...(mail ? mailEnv(mail.port, mail.dir) : {})
 		}
 	});
 	child.unref();
@@ -529,6 +533,7 @@ export async function stopCluster(): Promise<void> {
 	const hp = readPid(path.join(CLUSTER_DIR, 'haproxy.pid'));
 	if (alive(hp)) process.kill(hp!, 'SIGTERM');
 	for (let i = NODES - 1; i >= 0; i--) await stopNode(i);
+	await stopMailServer('fieldbench-cluster');
 }
 
 /** One line per part: what runs where. */

@@ -9,6 +9,7 @@
 import { QueryTypes, Sequelize } from 'sequelize';
 import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
 import { openPhone, shot, signInAs } from './browser';
+import { typeOnKeypad } from './phone-steps';
 
 const base = inject('baseURL');
 const JOB = '019a0000-0000-7000-8000-000000000301';
@@ -25,12 +26,7 @@ afterAll(async () => {
 	await phone?.close();
 });
 
-async function type(text: string) {
-	for (const ch of text) {
-		const name = ch === ',' || ch === '.' ? 'Decimal separator' : ch;
-		await phone.page.getByTestId('keypad').getByRole('button', { name, exact: true }).click();
-	}
-}
+const type = (text: string) => typeOnKeypad(phone.page, text);
 
 /** Every key at least 64 CSS px, every other target at least 56 (DESIGN §7). */
 async function smallTargets() {

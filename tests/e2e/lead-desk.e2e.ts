@@ -10,6 +10,7 @@ import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vi
 import { DEMO_USERS } from '../../src/lib/server/seed/demo';
 import { axeViolations } from './axe';
 import { openAt, openPhone, shot, signInAs } from './browser';
+import { openFieldJob, syncPhone } from './phone-steps';
 
 const base = inject('baseURL');
 const TECH = DEMO_USERS[2];
@@ -39,19 +40,8 @@ afterAll(async () => {
 	await Promise.all([desk?.close(), one?.close(), two?.close()]);
 });
 
-const syncNow = async (page: Page) => {
-	await page.goto(`${base}/field/sync`);
-	const button = page.getByRole('button', { name: /Sync now|Syncing/ });
-	await button.click();
-	await expect
-		.poll(() => page.getByTestId('sync-badge').textContent(), { timeout: 20_000 })
-		.not.toContain('waiting to send');
-	await expect.poll(() => button.isEnabled(), { timeout: 20_000 }).toBe(true);
-};
-const openJob = async (page: Page) => {
-	await page.goto(`${base}/field/job/${jobId}`);
-	await page.getByTestId('complaint').waitFor();
-};
+const syncNow = (page: Page) => syncPhone(page, base);
+const openJob = (page: Page) => openFieldJob(page, base, jobId);
 const expectAccessible = async (page: Page, where: string) =>
 	expect(await axeViolations(page), where).toEqual([]);
 

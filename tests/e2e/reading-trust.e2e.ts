@@ -8,6 +8,7 @@
  */
 import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
 import { openPhone, PHONE, shot, signInAs } from './browser';
+import { typeOnKeypad } from './phone-steps';
 
 const base = inject('baseURL');
 const JOB = '019a0000-0000-7000-8000-000000000301';
@@ -23,12 +24,7 @@ afterAll(async () => {
 	await phone?.close();
 });
 
-async function type(text: string) {
-	for (const ch of text) {
-		const name = ch === ',' || ch === '.' ? 'Decimal separator' : ch;
-		await phone.page.getByTestId('keypad').getByRole('button', { name, exact: true }).click();
-	}
-}
+const type = (text: string) => typeOnKeypad(phone.page, text);
 
 /** Elements of the capture screen that are not wholly inside the 390 × 844 viewport. */
 async function offScreen(selectors: string[]) {

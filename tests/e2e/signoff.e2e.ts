@@ -16,6 +16,7 @@ import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vi
 import { DEMO_USERS } from '../../src/lib/server/seed/demo';
 import { axeViolations } from './axe';
 import { openAt, openPhone, shot, signInAs } from './browser';
+import { openFieldJob, syncPhone } from './phone-steps';
 
 const base = inject('baseURL');
 const APPRENTICE = DEMO_USERS.find((u) => u.role === 'apprentice')!;
@@ -52,19 +53,8 @@ afterAll(async () => {
 	await Promise.all([desk?.close(), phone?.close(), leadPhone?.close()]);
 });
 
-const syncNow = async (page: Page) => {
-	await page.goto(`${base}/field/sync`);
-	const button = page.getByRole('button', { name: /Sync now|Syncing/ });
-	await button.click();
-	await expect
-		.poll(() => page.getByTestId('sync-badge').textContent(), { timeout: 20_000 })
-		.not.toContain('waiting to send');
-	await expect.poll(() => button.isEnabled(), { timeout: 20_000 }).toBe(true);
-};
-const openJob = async (page: Page) => {
-	await page.goto(`${base}/field/job/${jobId}`);
-	await page.getByTestId('complaint').waitFor();
-};
+const syncNow = (page: Page) => syncPhone(page, base);
+const openJob = (page: Page) => openFieldJob(page, base, jobId);
 const stateOf = (page: Page, testId: string) =>
 	page.locator(`#test-${testId}`).getByTestId('signoff-state').getAttribute('data-signoff');
 const expectAccessible = async (page: Page, where: string) =>

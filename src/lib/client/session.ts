@@ -78,22 +78,27 @@ export async function refreshCounts(db: LocalDb) {
 	syncStatus.lastSyncAt = (await getMeta<string>(db, 'lastSyncAt')) ?? null;
 }
 
-async function runLocked(fn: () => Promise<void>) {
+/** Runs `fn` holding the sync lock; skips when another runner holds it, unless `wait`. */
+async function runLocked(fn: () => Promise<void>, wait = false) {
 	const locks = (navigator as Navigator & { locks?: LockManager }).locks;
 	if (!locks) return fn();
-	await locks.request('fieldbench-sync', { ifAvailable: true }, async (lock) => {
+	await locks.request('fieldbench-sync', wait ? {} : { ifAvailable: true }, async (lock) => {
 		if (lock) await fn();
 	});
 }
 
-/** Sync now (the button, the timer, the `online` event and every local write call this). */
-export async function syncNow(): Promise<SyncReport | null> {
+/**
+ * Sync now (the button, the timer, the `online` event and every local write call this). The
+ * button passes `wait`: when a sync is already running it waits for it and runs once more, so
+ * "Sync now" ends only when this phone is up to date; the others skip a sync already running.
+ */
+export async function syncNow(opts: { wait?: boolean } = {}): Promise<SyncReport | null> {
 	if (!engine) return null;
 	let report: SyncReport | null = null;
 	syncStatus.state = 'syncing';
 	await runLocked(async () => {
 		report = await engine!.syncOnce();
-	});
+	}, opts.wait);
 	const r = report as SyncReport | null;
 	if (r) {
 		syncStatus.state = r.state;
