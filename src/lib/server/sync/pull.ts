@@ -80,9 +80,23 @@ async function readSources(scope: Scope, cursor: number, limit: number): Promise
 	};
 	const reads: Promise<Source>[] = [];
 	if (scope.lead) {
+		// A lead's feed leaves out only the rows of jobs closed before the window (a deleted
+		// job's last upsert and its delete still come, as they always did).
 		const inWindow = new Set(scope.jobs);
 		reads.push(
-			feed('workshop_id = ? AND seq > ? AND (audience IS NULL OR audience = ?)', [w, cursor, scope.userId], (r) => !r.jobId || inWindow.has(r.jobId) || r.op !== 'upsert')
+			feed('workshop_id = ? AND seq > ? AND (audience IS NULL OR audience = ?)', [w, cursor, scope.userId]).then(async (src) => {
+				const others = [...new Set(src.rows.flatMap((r) => (r.jobId && !inWindow.has(r.jobId) ? [r.jobId] : [])))];
+				if (!others.length) return src;
+				const old = new Set(
+					(
+						await db().query<{ id: string }>(
+							`SELECT id FROM jobs WHERE id IN (${ids(others)}) AND status = 'closed' AND closed_at < UTC_TIMESTAMP(3) - INTERVAL ? DAY`,
+							{ replacements: [...others, scope.days], type: QueryTypes.SELECT }
+						)
+					).map((r) => r.id)
+				);
+				return { rows: src.rows.filter((r) => !r.jobId || !old.has(r.jobId) || r.op !== 'upsert'), cut: src.cut };
+			})
 		);
 	} else {
 		reads.push(feed('workshop_id = ? AND audience = ? AND seq > ?', [w, scope.userId, cursor]));
