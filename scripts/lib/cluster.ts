@@ -134,6 +134,7 @@ function writeNodeCnf(s: ClusterState, i: number) {
 			'max_connections=300',
 			// Durable commits on every node (a commit acknowledged to a phone survives a power cut).
 			'innodb_flush_log_at_trx_commit=1',
+			'sync_binlog=1',
 			// What Galera needs: row-based replication, InnoDB, interleaved auto-increment locks.
 			'binlog_format=ROW',
 			'default_storage_engine=InnoDB',

@@ -3,15 +3,15 @@
  * data directory (a temporary folder), defaults file, socket and port, so the checkout's
  * private server (scripts/lib/mariadb.ts) and everything using it are never touched.
  *
- * Same settings as the private server (InnoDB flushing its log to the OS at every commit,
- * UTC, utf8mb4), so what a test proves about a crash holds for it too.
+ * Same settings as the private server (durable commits: InnoDB's log and the binary log
+ * flushed to disk at every commit, UTC, utf8mb4), so what a test proves about a crash holds for it too.
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
-import { APP_PASSWORD, APP_USER, ensureInstalled, freePort, portFree } from './mariadb';
+import { APP_PASSWORD, APP_USER, DURABLE, ensureInstalled, freePort, portFree } from './mariadb';
 
 const bin = (name: string) =>
 	['/usr/sbin', '/usr/bin', '/usr/local/sbin', '/usr/local/bin']
@@ -52,7 +52,7 @@ export class ScratchMariaDb {
 				'character-set-server=utf8mb4',
 				'collation-server=utf8mb4_unicode_ci',
 				'default-time-zone=+00:00',
-				'innodb_flush_log_at_trx_commit=2',
+				...DURABLE,
 				'innodb_buffer_pool_size=64M',
 				'max_connections=300',
 				'',

@@ -6,8 +6,10 @@
  * Steps of `startServer()`:
  *  1. find the binaries (install `mariadb-server` with apt-get when missing and we are root);
  *  2. write the defaults file (.data/mariadb.cnf) — it is always the first option we pass;
+ *     commits are durable (`DURABLE`: `innodb_flush_log_at_trx_commit=1`, `sync_binlog=1`);
  *  3. initialise the data directory once;
- *  4. reuse a running server of ours (pid file + ping), or clear a stale pid file;
+ *  4. reuse a running server of ours (pid file + ping; its durability settings brought to
+ *     the defaults file's), or clear a stale pid file;
  *  5. pick the port (3307 or the next free one), start in the background, wait for ping;
  *  6. the caller then creates its database with `ensureDatabase()`.
  */
@@ -55,6 +57,9 @@ export function ensureInstalled(): void {
 	spawnSync('service', ['mariadb', 'stop'], { stdio: 'ignore' });
 }
 
+/** The durability settings of every MariaDB the project starts (the cluster's nodes too). */
+export const DURABLE = ['innodb_flush_log_at_trx_commit=1', 'sync_binlog=1'];
+
 function writeDefaults(port: number): void {
 	mkdirSync(DATA, { recursive: true });
 	const cnf = [
@@ -69,7 +74,9 @@ function writeDefaults(port: number): void {
 		'character-set-server=utf8mb4',
 		'collation-server=utf8mb4_unicode_ci',
 		'default-time-zone=+00:00',
-		'innodb_flush_log_at_trx_commit=2',
+		// Durable commits: a push acknowledged to a phone (which then clears its outbox) is on
+		// disk before the answer leaves; the binary log, when someone turns it on, likewise.
+		...DURABLE,
 		'max_connections=300',
 		'',
 		'[client]',
@@ -143,7 +150,11 @@ export async function startServer(): Promise<{ port: number; started: boolean }>
 	const existing = runningPort();
 	if (existing) {
 		writeDefaults(existing);
-		if (ping()) return { port: existing, started: false };
+		if (ping()) {
+			// A server started before the durable settings: both are dynamic, so set them now.
+			rootSql('SET GLOBAL innodb_flush_log_at_trx_commit = 1; SET GLOBAL sync_binlog = 1');
+			return { port: existing, started: false };
+		}
 	}
 	const stale = readPid();
 	if (stale && !alive(stale)) rmSync(PID_FILE, { force: true });

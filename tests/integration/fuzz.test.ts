@@ -177,7 +177,7 @@ const bodyArb = (shape: fc.Arbitrary<unknown> = objectArb) =>
 		{ weight: 1, arbitrary: fc.constantFrom('', '{', '{"a":', 'null', '[]', '"x"', '\u0000', '{"__proto__":{"x":1}}', '{"constructor":{"prototype":{}}}') }
 	);
 const formArb = fc.dictionary(fc.oneof(fc.constantFrom(...fieldNames, 'list', 'index', 'role', 'password', 'current', 'next', 'repeat'), fc.string({ maxLength: 10 })), fc.oneof(fc.string({ maxLength: 60 }), fc.constantFrom('', '0', '-1', 'abc', 'open', 'after', 'before', 'P0301', 'lead', 'owner', 'technician', 'on', 'x'.repeat(3000))), { maxKeys: 8 });
-const queryArb = fc.dictionary(fc.oneof(fc.constantFrom('q', 'status', 'assignee', 'vehicle', 'customer', 'from', 'to', 'sort', 'page', 'pageSize', 'kind', 'sheets', 'state', 'componentId', 'consent', 'hybrid', 'cursor', 'limit', 'delimiter', 'next'), fc.string({ maxLength: 8 })), fc.oneof(fc.string({ maxLength: 30 }), fc.constantFrom('', '0', '-1', '1e3', '101', 'all', 'open', '-created', 'name', 'yes', 'semicolon', '99999999999999999999')), { maxKeys: 5 });
+const queryArb = fc.dictionary(fc.oneof(fc.constantFrom('q', 'status', 'assignee', 'vehicle', 'customer', 'from', 'to', 'sort', 'page', 'pageSize', 'kind', 'sheets', 'state', 'componentId', 'consent', 'hybrid', 'cursor', 'limit', 'v', 'snapshot', 'delimiter', 'next'), fc.string({ maxLength: 8 })), fc.oneof(fc.string({ maxLength: 30 }), fc.constantFrom('', '0', '-1', '1e3', '101', 'all', 'open', '-created', 'name', 'yes', 'semicolon', '2', '1.0.', '99999999999999999999')), { maxKeys: 5 });
 
 const roleArb = fc.constantFrom<Role>('owner', 'lead', 'lead', 'technician', 'technician', 'apprentice', 'other', 'none', 'garbage');
 const jsonTypes = fc.constantFrom('application/json', 'application/json', 'application/json', 'application/json; charset=utf-8', 'text/plain', 'text/csv', 'application/x-www-form-urlencoded', 'multipart/form-data; boundary=x', 'application/xml', '', 'garbage/type');
@@ -193,7 +193,7 @@ const withQuery = (path: fc.Arbitrary<string>) => fc.tuple(path, queryArb).map((
 
 const routes = (): Route[] => [
 	{ kind: 'api', method: 'GET', path: withQuery(fc.constantFrom('/api/me', '/api/health', '/api/jobs', '/api/jobs/assignees', '/api/customers', '/api/vehicles', '/api/components', '/api/components/csv', '/api/sheets', '/api/conflicts', '/api/sync/pull', '/api/nothing-here')) },
-	{ kind: 'api', method: 'GET', path: withQuery(fc.oneof(p('/api/jobs/:id', 'job'), p('/api/customers/:id', 'customer'), p('/api/vehicles/:id', 'vehicle'), p('/api/components/:id', 'component'), p('/api/sheets/:id', 'sheet'))) },
+	{ kind: 'api', method: 'GET', path: withQuery(fc.oneof(p('/api/jobs/:id', 'job'), p('/api/customers/:id', 'customer'), p('/api/vehicles/:id', 'vehicle'), p('/api/components/:id', 'component'), p('/api/sheets/:id', 'sheet'), p('/api/sync/jobs/:id', 'job'))) },
 	{ kind: 'api', method: 'POST', path: fc.constantFrom('/api/jobs', '/api/customers', '/api/vehicles', '/api/components', '/api/sheets'), body: bodyArb() },
 	{ kind: 'api', method: 'PATCH', path: fc.oneof(p('/api/jobs/:id', 'job'), p('/api/customers/:id', 'customer'), p('/api/vehicles/:id', 'vehicle'), p('/api/components/:id', 'component'), p('/api/sheets/:id', 'sheet')), body: bodyArb() },
 	{ kind: 'api', method: 'POST', path: p('/api/jobs/:id/status', 'job'), body: bodyArb(fc.record({ status: valueArb, baseVersion: fc.oneof(fc.nat(4), valueArb) }, { requiredKeys: [] })) },
@@ -213,7 +213,7 @@ const routes = (): Route[] => [
 	{ kind: 'api', method: 'GET', path: withQuery(fc.oneof(p('/api/photos/:id', 'job'), p('/api/photos/:id/file', 'job'), p('/api/jobs/:id/photos', 'job'))) },
 	{ kind: 'api', method: 'PUT', path: withQuery(p('/api/photos/:id', 'job')), body: fc.oneof(fc.string({ maxLength: 300 }), bodyArb()), type: fc.constantFrom('image/jpeg', 'image/png', 'application/octet-stream', '') },
 	{ kind: 'api', method: 'POST', path: p('/api/photos/:id/marks', 'job'), body: bodyArb(fc.record({ mark: fc.oneof(fc.constantFrom('removed', 'for_customer', 'not_for_customer', ''), valueArb) }, { requiredKeys: [] })) },
-	{ kind: 'form', method: 'POST', path: fc.constantFrom('/jobs/new', '/customers/new', '/vehicles/new', '/team?/invite', '/sign-in', '/sign-in?next=%2Fjobs', '/password', '/sign-out') },
+	{ kind: 'form', method: 'POST', path: fc.constantFrom('/jobs/new', '/customers/new', '/vehicles/new', '/team?/invite', '/team?/windows', '/sign-in', '/sign-in?next=%2Fjobs', '/password', '/sign-out') },
 	{ kind: 'form', method: 'POST', path: fc.oneof(p('/jobs/:id?/update', 'job'), p('/jobs/:id?/status', 'job'), p('/jobs/:id?/addCode', 'job'), p('/jobs/:id?/removeCode', 'job'), p('/jobs/:id?/photoMark', 'job'), p('/customers/:id?/update', 'customer'), p('/vehicles/:id?/update', 'vehicle'), p('/jobs/:id?/nothing', 'job')) },
 	{ kind: 'page', method: 'GET', path: withQuery(fc.oneof(p('/jobs/:id', 'job'), p('/customers/:id', 'customer'), p('/vehicles/:id', 'vehicle'), p('/library/:id', 'component'), p('/library/:id/edit', 'component'), p('/library/:id/sheets/:id', 'component', 'sheet'), p('/field/job/:id', 'job'), fc.constantFrom('/jobs', '/jobs/new', '/customers/new', '/vehicles/new', '/team', '/library', '/sign-in', '/shell', '/field'))) }
 ];

@@ -313,7 +313,7 @@ describe('the real push endpoint against the reference server', () => {
 			fc.asyncProperty(scenarioArb, async ({ steps, batch }) => {
 				await runScenario(steps as Step[], batch);
 			}),
-			{ numRuns: RUNS, endOnFailure: process.env.DIFF_SHRINK !== '1', examples: [[{ steps: EVERY_ANSWER, batch: Array(28).fill(1) }]] }
+			{ numRuns: RUNS, endOnFailure: process.env.DIFF_SHRINK !== '1', ...(process.env.DIFF_SEED ? { seed: Number(process.env.DIFF_SEED) } : {}), examples: [[{ steps: EVERY_ANSWER, batch: Array(28).fill(1) }]] }
 		);
 		console.log(`differential: ${[...seenAnswers].map(([k, v]) => `${k} ${v}`).join(', ')}; ${pulls} pulls with changes`);
 		// The generated scenarios must reach every kind of answer, or this test proves little.

@@ -42,7 +42,13 @@ function canonical(v: unknown): string {
 	);
 }
 
-const shape = (r: LocalRecord) => canonical({ version: r.version, deleted: r.deleted, jobId: r.jobId, data: r.data, pending: r.pending });
+/**
+ * A fresh phone's copy comes from a snapshot of the stored rows, where a field never set is
+ * null; the feed's record of a create leaves such a field out. Both mean "no value" to the
+ * phone, so a null field counts as an absent one; any value still has to be equal.
+ */
+const present = (data: Record<string, unknown>) => Object.fromEntries(Object.entries(data).filter(([, v]) => v !== null));
+const shape = (r: LocalRecord) => canonical({ version: r.version, deleted: r.deleted, jobId: r.jobId, data: present(r.data), pending: r.pending });
 async function recordsOf(local: LocalDb) {
 	return new Map((await local.getAll('records')).map((r) => [`${r.entity}:${r.id}`, r]));
 }

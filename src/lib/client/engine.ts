@@ -8,15 +8,18 @@
  * cut off) stops the push with that entry still at the head (a 429's Retry-After is passed
  * on in the report, for the runner to wait that long); a 401 pauses until the user signs in again and
  * never drops anything; a 413 halves the batch.
- * Pull: from the stored cursor until `more` is false; upserts keep local unsent fields on
- * top; `evict` removes a job and everything under it. Then the clashes the lead has settled
- * since are dropped from what needs attention.
+ * Pull (version 2, see `server/sync/pull.ts`): from the stored cursor until `more` is false;
+ * a first sync or a cursor older than the feed keeps is answered with a snapshot, after
+ * which what it did not bring is swept; upserts keep local unsent fields on top; `evict`
+ * removes a job and everything under it, and so does a job missing from the last page's
+ * `keep`. Nothing with an op still in the outbox is ever dropped. Then the clashes the lead
+ * has settled since are dropped from what needs attention.
  * One tab at a time (navigator.locks, when there is one). Never awaits the network inside
  * an IndexedDB transaction.
  */
 import { getMeta, setMeta, type LocalDb, type LocalRecord, type OutboxEntry } from './local-db';
 import { countOutbox, peekOutbox } from './outbox';
-import { PUSH_BATCH, type Change, type PushResult } from '../sync/protocol';
+import { PHONE_PULL_LIMIT, PUSH_BATCH, type Change, type PullResponse, type PushResult } from '../sync/protocol';
 
 export type SyncState = 'idle' | 'syncing' | 'offline' | 'signed_out' | 'error';
 /**
@@ -188,20 +191,33 @@ export class SyncEngine {
 		await tx.done;
 	}
 
-	/** Pull pages until the feed has no more. */
+	/**
+	 * Pull pages until the feed has no more (version 2). A snapshot (first sync, or a cursor
+	 * older than the feed keeps) is paged with its token, kept beside the cursor so a
+	 * dropped connection resumes it; the records it brings are marked, and when it ends the
+	 * records it did not bring are swept (never one with ops still waiting to send). The last
+	 * page's `keep` drops the jobs no longer in scope (closed outside the window, moved away).
+	 */
 	async pullAll(): Promise<number> {
 		let count = 0;
 		for (let page = 0; page < 10_000; page++) {
 			const cursor = (await getMeta<number>(this.db, CURSOR)) ?? 0;
-			const r = await this.call(`/api/sync/pull?cursor=${cursor}&limit=500`);
+			const snapshot = await getMeta<string>(this.db, SNAPSHOT);
+			const r = await this.call(`/api/sync/pull?v=2&cursor=${cursor}&limit=${PHONE_PULL_LIMIT}${snapshot ? `&snapshot=${encodeURIComponent(snapshot)}` : ''}`);
 			if (r.status === 400) {
 				// The feed does not know this cursor (e.g. another database): start again.
 				await setMeta(this.db, CURSOR, 0);
-				if (cursor === 0) throw new Problem('pull_refused');
+				await this.db.delete('meta', SNAPSHOT);
+				if (cursor === 0 && !snapshot) throw new Problem('pull_refused');
 				continue;
 			}
-			const body = await this.body<{ changes: Change[]; cursor: number; more: boolean }>(r);
-			await applyChanges(this.db, body.changes, body.cursor);
+			if (!r.ok) throw new Transient('server_error');
+			const body = await this.body<PullResponse>(r);
+			const mark = body.reset ? `${cursor}:${Date.now()}` : await getMeta<string>(this.db, MARK);
+			const inSnapshot = Boolean(body.reset || snapshot);
+			await applyChanges(this.db, body.changes, body.cursor, { snapshot: body.snapshot ?? null, mark: inSnapshot ? mark : undefined });
+			if (inSnapshot && !body.snapshot) await sweepUnmarked(this.db, mark!);
+			if (body.keep) await keepOnly(this.db, body.keep);
 			count += body.changes.length;
 			if (!body.more) return count;
 		}
@@ -209,11 +225,65 @@ export class SyncEngine {
 	}
 }
 
+const SNAPSHOT = 'snapshot';
+const MARK = 'snapshotMark';
+
+/** Whether a local record may be dropped: it reached the server and has nothing waiting to send. */
+const settled = (r: LocalRecord) => r.pending === 0 && r.version > 0;
+
+/** After a snapshot: drop what it did not bring (deleted or out of scope since the phone last synced). */
+export async function sweepUnmarked(db: LocalDb, mark: string): Promise<number> {
+	const tx = db.transaction(['records', 'outbox', 'meta'], 'readwrite');
+	const waiting = new Set((await tx.objectStore('outbox').getAll()).map((e) => `${e.op.entity}:${e.op.entityId}`));
+	let dropped = 0;
+	let c = await tx.objectStore('records').openCursor();
+	while (c) {
+		const r = c.value;
+		if (r.snap !== mark && settled(r) && !waiting.has(`${r.entity}:${r.id}`)) {
+			await c.delete();
+			dropped++;
+		}
+		c = await c.continue();
+	}
+	await tx.objectStore('meta').delete(MARK);
+	await tx.done;
+	return dropped;
+}
+
+/** Drop the jobs not in `keep` and everything under them (records with waiting ops stay). */
+export async function keepOnly(db: LocalDb, keep: string[]): Promise<number> {
+	const ids = new Set(keep);
+	const tx = db.transaction(['records', 'outbox'], 'readwrite');
+	const records = tx.objectStore('records');
+	const waiting = new Set((await tx.objectStore('outbox').getAll()).flatMap((e) => [e.jobId, e.op.entityId]));
+	let dropped = 0;
+	for (const job of await records.index('by-entity').getAll('job')) {
+		if (ids.has(job.id) || !settled(job) || waiting.has(job.id)) continue;
+		await records.delete(['job', job.id]);
+		for (const r of await records.index('by-job').getAll(job.id)) {
+			if (r.pending > 0 || waiting.has(r.id)) continue;
+			await records.delete([r.entity, r.id]);
+		}
+		dropped++;
+	}
+	await tx.done;
+	return dropped;
+}
+
 const jobOf = (c: Change): string | null =>
 	c.entity === 'job' ? c.entityId : ((c.record?.jobId as string | undefined) ?? null);
 
-/** Apply pulled changes and the new cursor in one transaction. */
-export async function applyChanges(db: LocalDb, changes: Change[], cursor: number): Promise<void> {
+/**
+ * Apply pulled changes and the new cursor in one transaction; during a snapshot also its
+ * next token and the mark of every record it brings. `cursor` null leaves the cursor alone
+ * (a job fetched on demand).
+ */
+export async function applyChanges(
+	db: LocalDb,
+	changes: Change[],
+	cursor: number | null,
+	o: { snapshot?: string | null; mark?: string } = {}
+): Promise<void> {
 	const tx = db.transaction(['records', 'outbox', 'meta'], 'readwrite');
 	const records = tx.objectStore('records');
 	const pendingOps = changes.length ? await tx.objectStore('outbox').getAll() : [];
@@ -225,7 +295,11 @@ export async function applyChanges(db: LocalDb, changes: Change[], cursor: numbe
 			continue;
 		}
 		const local = await records.get(key);
-		if (local && local.version > c.version) continue; // already newer here
+		if (local && local.version > c.version) {
+			// already newer here; a snapshot still counts it as brought
+			if (o.mark && local.snap !== o.mark) await records.put({ ...local, snap: o.mark });
+			continue;
+		}
 		const mine = pendingOps.filter((e) => e.op.entity === c.entity && e.op.entityId === c.entityId);
 		const data = { ...(c.record ?? local?.data ?? {}) };
 		for (const e of mine) Object.assign(data, e.op.fields); // unsent local edits stay on top
@@ -237,11 +311,16 @@ export async function applyChanges(db: LocalDb, changes: Change[], cursor: numbe
 			data,
 			deleted: c.op === 'delete' || Boolean(c.record?.deleted),
 			pending: mine.length,
-			updatedAt: new Date().toISOString()
+			updatedAt: new Date().toISOString(),
+			...(o.mark ? { snap: o.mark } : local?.snap ? { snap: local.snap } : {})
 		};
 		await records.put(rec);
 	}
-	await tx.objectStore('meta').put(cursor, CURSOR);
+	const meta = tx.objectStore('meta');
+	if (cursor !== null) await meta.put(cursor, CURSOR);
+	if (o.snapshot) await meta.put(o.snapshot, SNAPSHOT);
+	else if (o.snapshot === null) await meta.delete(SNAPSHOT);
+	if (o.mark) await meta.put(o.mark, MARK);
 	await tx.done;
 }
 
@@ -249,4 +328,22 @@ export async function applyChanges(db: LocalDb, changes: Change[], cursor: numbe
 export function backoffMs(attempt: number, random = Math.random): number {
 	const cap = Math.min(5 * 60_000, 1000 * 2 ** attempt);
 	return Math.round(cap / 2 + (random() * cap) / 2);
+}
+
+/**
+ * A job the phone does not keep (older than its window), fetched with signal and put in
+ * IndexedDB so its page opens; the next sync drops it again. False when it could not be had
+ * (offline, not the caller's, gone).
+ */
+export async function fetchJobOnDemand(db: LocalDb, jobId: string, fetcher: Fetch = (i, o) => fetch(i, o)): Promise<boolean> {
+	try {
+		const r = await fetcher(`/api/sync/jobs/${encodeURIComponent(jobId)}`, { credentials: 'same-origin' });
+		if (!r.ok) return false;
+		const body = (await r.json()) as { changes?: Change[] };
+		if (!Array.isArray(body.changes) || !body.changes.length) return false;
+		await applyChanges(db, body.changes, null);
+		return true;
+	} catch {
+		return false;
+	}
 }

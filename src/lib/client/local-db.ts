@@ -8,7 +8,8 @@
  *   its ops still in the outbox.
  * - `outbox`: ops waiting to send, in the order made (auto-increment key).
  * - `issues`: what needs attention: rejected ops (with the reason), clashes kept for the lead.
- * - `meta`: the pull cursor, the device id, the last sync.
+ * - `meta`: the pull cursor (and a snapshot's token and mark while one runs), the device id,
+ *   the last sync.
  * - `photos` (version 2): photos taken on this phone, the shrunk picture as a blob with its
  *   record and where its upload stands (`client/photos.ts`); kept after sending, so the
  *   phone shows them without signal.
@@ -26,6 +27,8 @@ export type LocalRecord = {
 	deleted: boolean;
 	pending: number;
 	updatedAt: string;
+	/** The snapshot that last brought it (swept when a snapshot ends without it). */
+	snap?: string;
 };
 /** `before`: for a patch, the values its fields had on this phone before it (to undo a refusal). */
 export type OutboxEntry = { seq?: number; op: Op; jobId: string | null; createdAt: string; before?: Record<string, unknown> };

@@ -53,6 +53,10 @@ export const PUSH_BATCH = 500;
 export const DEFAULT_PULL_LIMIT = 500;
 /** The largest pull page a query may ask for. */
 export const MAX_PULL_LIMIT = 1000;
+/** The largest page of a version-2 pull (a snapshot's pages are large and few). */
+export const MAX_PULL_LIMIT_V2 = 5000;
+/** The page a phone asks for (version 2). */
+export const PHONE_PULL_LIMIT = 2000;
 
 /** True when `id` is a UUID whose version nibble is 7 (the ids devices make, sortable by time). */
 export function isUuidV7(id: string): boolean {
@@ -232,11 +236,19 @@ export const changeSchema = z
 		path: ['record'],
 		message: 'An upsert carries the record'
 	});
-/** `GET /api/sync/pull` answer: changes after the cursor, the new cursor, and whether more wait. */
+/**
+ * `GET /api/sync/pull` answer: changes after the cursor, the new cursor, and whether more
+ * wait. Version 2 adds `snapshot` (the token of the snapshot's next page), `reset` (on a
+ * snapshot's first page: what the phone holds from before is replaced) and `keep` (on the
+ * last page: the ids of the jobs in scope; the phone drops the others).
+ */
 export const pullResponseSchema = z.object({
 	changes: z.array(changeSchema),
 	cursor: z.number().int().min(0),
-	more: z.boolean()
+	more: z.boolean(),
+	snapshot: z.string().max(80).optional(),
+	reset: z.literal(true).optional(),
+	keep: z.array(uuidSchema).optional()
 });
 
 /** One change-feed row. */
@@ -246,22 +258,37 @@ export type PullResponse = z.output<typeof pullResponseSchema>;
 
 const digits = (name: string) => z.string().regex(/^\d{1,15}$/, `${name} must be a whole number`);
 
-/** Pull query: `cursor` a non-negative integer (default 0), `limit` 1..1000 (default 500). */
-export const pullQuerySchema = z.object({
-	cursor: digits('cursor').default('0').transform(Number),
-	limit: digits('limit')
-		.default(String(DEFAULT_PULL_LIMIT))
-		.transform(Number)
-		.pipe(z.number().min(1).max(MAX_PULL_LIMIT))
-});
-/** A parsed pull query: whole numbers, `limit` within 1..`MAX_PULL_LIMIT`. */
+/**
+ * Pull query: `cursor` a non-negative integer (default 0), `limit` 1..1000 (default 500);
+ * `v=2` the snapshot protocol (limit up to 5000), `snapshot` its token.
+ */
+export const pullQuerySchema = z
+	.object({
+		cursor: digits('cursor').default('0').transform(Number),
+		limit: digits('limit').default(String(DEFAULT_PULL_LIMIT)).transform(Number),
+		v: z.enum(['1', '2']).default('1').transform(Number),
+		snapshot: z
+			.string()
+			.regex(/^\d{1,15}\.\d{1,3}\.[0-9a-f-]{0,36}$/, 'Not a snapshot token')
+			.optional()
+	})
+	.superRefine((q, ctx) => {
+		const max = q.v === 2 ? MAX_PULL_LIMIT_V2 : MAX_PULL_LIMIT;
+		if (q.limit < 1 || q.limit > max)
+			ctx.addIssue({ code: 'custom', path: ['limit'], message: `limit must be 1 to ${max}` });
+		if (q.snapshot && q.v !== 2)
+			ctx.addIssue({ code: 'custom', path: ['snapshot'], message: 'A snapshot needs v=2' });
+	});
+/** A parsed pull query: whole numbers, `limit` within 1..`MAX_PULL_LIMIT` (v2: `MAX_PULL_LIMIT_V2`). */
 export type PullQuery = z.output<typeof pullQuerySchema>;
 
-/** Parse `?cursor=&limit=`; an absent parameter takes its default, an empty one is invalid. */
+/** Parse `?cursor=&limit=&v=&snapshot=`; an absent parameter takes its default, an empty one is invalid. */
 export function parsePullQuery(params: URLSearchParams) {
 	return pullQuerySchema.safeParse({
 		cursor: params.get('cursor') ?? undefined,
-		limit: params.get('limit') ?? undefined
+		limit: params.get('limit') ?? undefined,
+		v: params.get('v') ?? undefined,
+		snapshot: params.get('snapshot') ?? undefined
 	});
 }
 

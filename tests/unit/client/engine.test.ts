@@ -205,3 +205,50 @@ describe('the sync client', () => {
 		expect(backoffMs(4, () => 0.5)).toBeGreaterThan(backoffMs(3, () => 0.5));
 	});
 });
+
+describe('what the phone keeps (pull v2)', () => {
+	const job = (id: string, version = 1) => ({ seq: 1, entity: 'job' as const, entityId: id, version, op: 'upsert' as const, record: { id, complaint: 'Fault' } });
+	const test = (id: string, jobId: string) => ({ seq: 2, entity: 'test' as const, entityId: id, version: 1, op: 'upsert' as const, record: { id, jobId } });
+
+	it('resumes a snapshot with its token, then sweeps what it did not bring, never a record with a waiting op', async () => {
+		const db = await openLocalDb(uuidv7());
+		const [kept, gone, mine] = [uuidv7(), uuidv7(), uuidv7()];
+		await applyChanges(db, [job(kept), job(gone), test(uuidv7(), gone)], 5);
+		await applyChanges(db, [job(mine)], 6);
+		await writeLocal(db, { entity: 'job', id: mine, kind: 'patch', jobId: mine, fields: { notes: 'Waiting to send' } });
+		const urls: string[] = [];
+		let step = 0;
+		const s = fakeServer((url) => {
+			urls.push(url);
+			if (url.includes('push')) return json(503, {}); // not called: the pull runs with the op still waiting
+			step++;
+			if (step === 1) return json(200, { changes: [job(kept, 2)], cursor: 40, more: true, snapshot: '40.2.', reset: true });
+			return json(200, { changes: [], cursor: 40, more: false, keep: [kept, mine] });
+		});
+		const engine = new SyncEngine(db, 'dev-1', s.fetcher);
+		await engine.pullAll();
+		expect(urls[0]).toContain('v=2&cursor=6');
+		expect(urls[1]).toContain('snapshot=40.2.');
+		expect(await getRecord(db, 'job', kept)).toMatchObject({ version: 2 });
+		expect(await getRecord(db, 'job', gone)).toBeUndefined();
+		expect(await db.getAllFromIndex('records', 'by-job', gone)).toEqual([]);
+		expect(await getRecord(db, 'job', mine)).toMatchObject({ pending: 1 }); // not brought, but its op waits
+		expect(await getMeta(db, 'snapshot')).toBeUndefined();
+		expect(await getMeta(db, 'cursor')).toBe(40);
+	});
+
+	it('drops a job missing from keep and what is under it, keeping one with a waiting op', async () => {
+		const db = await openLocalDb(uuidv7());
+		const [a, b, c] = [uuidv7(), uuidv7(), uuidv7()];
+		const tb = uuidv7();
+		await applyChanges(db, [job(a), job(b), job(c), test(tb, b)], 9);
+		await writeLocal(db, { entity: 'reading', kind: 'create', jobId: c, fields: { testId: uuidv7(), checkKey: 'primary', samples: [] } });
+		const s = fakeServer(() => json(200, { changes: [], cursor: 9, more: false, keep: [a] }));
+		await new SyncEngine(db, 'dev-1', s.fetcher).pullAll();
+		expect(await getRecord(db, 'job', a)).toBeDefined();
+		expect(await getRecord(db, 'job', b)).toBeUndefined();
+		expect(await getRecord(db, 'test', tb)).toBeUndefined();
+		expect(await getRecord(db, 'job', c)).toBeDefined(); // a reading on it waits to send
+		expect(await countOutbox(db)).toBe(1);
+	});
+});

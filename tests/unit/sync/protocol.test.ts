@@ -242,11 +242,20 @@ describe('parsePullQuery', () => {
 	const parse = (q: string) => parsePullQuery(new URLSearchParams(q));
 
 	it('defaults to cursor 0 and limit 500', () => {
-		expect(parse('').data).toEqual({ cursor: 0, limit: 500 });
+		expect(parse('').data).toEqual({ cursor: 0, limit: 500, v: 1 });
 	});
 
 	it('reads a cursor and a limit', () => {
-		expect(parse('cursor=42&limit=1000').data).toEqual({ cursor: 42, limit: 1000 });
+		expect(parse('cursor=42&limit=1000').data).toEqual({ cursor: 42, limit: 1000, v: 1 });
+	});
+
+	it('reads version 2 with its larger pages and a snapshot token', () => {
+		expect(parse('v=2&limit=5000&snapshot=12.3.0190a0b0-0000-7000-8000-000000000000').data).toEqual({
+			cursor: 0,
+			limit: 5000,
+			v: 2,
+			snapshot: '12.3.0190a0b0-0000-7000-8000-000000000000'
+		});
 	});
 
 	it.each([
@@ -257,6 +266,10 @@ describe('parsePullQuery', () => {
 		['cursor=1e3', 'cursor'],
 		['limit=0', 'limit'],
 		['limit=1001', 'limit'],
-		['limit=ten', 'limit']
+		['limit=ten', 'limit'],
+		['v=2&limit=5001', 'limit'],
+		['v=3', 'v'],
+		['snapshot=1.0.', 'snapshot'],
+		['v=2&snapshot=1;DROP', 'snapshot']
 	])('rejects %s', (q, path) => expect(issuePath(parse(q))).toBe(path));
 });

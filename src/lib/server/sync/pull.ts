@@ -1,32 +1,59 @@
 /**
- * GET /api/sync/pull: changes after `cursor`, at most `limit`, in seq order, from the
- * change feed and the append-only tables (whose rows carry their own seq), filtered by the
- * caller's scope. The cursor moves past every row read, seen or not. A cursor ahead of the
- * feed is a 400 (the caller's copy belongs to another database).
+ * GET /api/sync/pull: what changed after `cursor` in the caller's scope (`scope.ts`), at most
+ * `limit` changes, in seq order.
+ *
+ * Reading (both versions): the scope is applied in SQL. The jobs in scope are read once
+ * (`seenJobsSql`); then each source is read from its own index, at most `limit` rows after
+ * the cursor: the append-only tables by `(job_id, seq)` for those jobs, and the change feed
+ * by `(workshop_id, audience, seq)` (rows for this user), `(workshop_id, job_id, seq)` (rows
+ * of those jobs) and `(workshop_id, entity, seq)` (library, customers, vehicles). Leads and
+ * owners read the feed in seq order, keeping rows of no job or of a job in their window. The
+ * sources are merged; the page ends at the lowest seq up to which every source was read in
+ * full, so nothing is skipped, and when no source was cut the cursor moves to the end of the
+ * feed: a phone with little to see needs one round trip whatever the workshop wrote.
+ *
+ * Version 1 (no `v`): the feed from the cursor; a cursor ahead of the feed, or older than
+ * what the feed keeps, is a 400.
+ *
+ * Version 2 (`v=2`, the phone's): a cursor of 0, or one older than the kept feed
+ * (`change_counters.floor_seq`, see `trimFeed`), gets a **snapshot**: the current records in
+ * scope — every mutable entity of the sync registry, then every append-only table — paged
+ * with a `snapshot` token (`base.step.after`), with `reset: true` on its first page; then the
+ * feed from `base`. The last page of a pull (`more: false`) carries `keep`, the ids of the
+ * jobs in scope: the phone drops the others (closed outside its window, moved away).
  */
-import { QueryTypes } from 'sequelize';
+import { QueryTypes, Op as SqlOp, type ModelStatic, type Model } from 'sequelize';
 import type { SessionUser } from '../auth/types';
 import { db } from '../db';
-import { ValidationError } from '../errors';
-import type { Change } from '../../sync/protocol';
-import { APPEND_TABLES, appendRecord } from '../db/append-tables';
+import { NotFoundError, ValidationError } from '../errors';
+import { MAX_PULL_LIMIT_V2, type Change } from '../../sync/protocol';
+import { Job } from '../db/models';
 import { isLead } from '../../roles';
-import { scopeOf, visible, type FeedRow } from './scope';
+import { seesJob } from '../../rules';
+import { APPEND_TABLES, appendRecord } from '../db/append-tables';
+import { AGGREGATES } from './registry';
+import { LIBRARY, scopeOf, visibleWithoutJob, windowsOf, type FeedRow, type Scope } from './scope';
+
+/** How long the change feed keeps its rows; an older cursor gets a snapshot (v2). */
+export const FEED_DAYS = Number(process.env.SYNC_FEED_DAYS ?? 90);
 
 export async function lastSeq(workshopId: string): Promise<number> {
-	const [row] = await db().query<{ last_seq: number | bigint }>('SELECT last_seq FROM change_counters WHERE workshop_id = ?', {
-		replacements: [workshopId],
-		type: QueryTypes.SELECT
-	});
-	return Number(row?.last_seq ?? 0);
+	return (await counters(workshopId)).last;
 }
 
-async function readFeed(workshopId: string, cursor: number, limit: number): Promise<FeedRow[]> {
-	const rows = await db().query<Record<string, unknown>>(
-		'SELECT seq, entity, entity_id, version, op, job_id, audience, record FROM changes WHERE workshop_id = ? AND seq > ? ORDER BY seq LIMIT ?',
-		{ replacements: [workshopId, cursor, limit], type: QueryTypes.SELECT }
+async function counters(workshopId: string): Promise<{ last: number; floor: number }> {
+	const [row] = await db().query<{ last_seq: number | bigint; floor_seq: number | bigint }>(
+		'SELECT last_seq, floor_seq FROM change_counters WHERE workshop_id = ?',
+		{ replacements: [workshopId], type: QueryTypes.SELECT }
 	);
-	const feed: FeedRow[] = rows.map((r) => ({
+	return { last: Number(row?.last_seq ?? 0), floor: Number(row?.floor_seq ?? 0) };
+}
+
+const FEED_COLUMNS = 'seq, entity, entity_id, version, op, job_id, audience, record';
+const ids = (xs: string[]) => xs.map(() => '?').join(', ');
+
+function feedRow(r: Record<string, unknown>): FeedRow {
+	return {
 		seq: Number(r.seq),
 		entity: r.entity as string,
 		entityId: r.entity_id as string,
@@ -35,28 +62,247 @@ async function readFeed(workshopId: string, cursor: number, limit: number): Prom
 		jobId: r.job_id as string | null,
 		audience: r.audience as string | null,
 		record: r.record ? JSON.parse(r.record as string) : null
-	}));
-	for (const [entity, table] of Object.entries(APPEND_TABLES)) {
-		const more = await db().query<Record<string, unknown>>(`SELECT * FROM ${table} WHERE workshop_id = ? AND seq > ? ORDER BY seq LIMIT ?`, {
-			replacements: [workshopId, cursor, limit],
-			type: QueryTypes.SELECT
-		});
-		for (const r of more) {
-			feed.push({ seq: Number(r.seq), entity, entityId: r.id as string, version: 1, op: 'upsert', jobId: r.job_id as string, audience: null, record: appendRecord(entity, r) });
-		}
-	}
-	return feed.sort((a, b) => a.seq - b.seq);
+	};
 }
 
+type Source = { rows: FeedRow[]; cut: boolean };
+
+async function select(sql: string, params: unknown[], limit: number): Promise<Record<string, unknown>[]> {
+	return db().query<Record<string, unknown>>(`${sql} ORDER BY seq LIMIT ?`, { replacements: [...params, limit], type: QueryTypes.SELECT });
+}
+
+/** The sources of one page: each read from its index, at most `limit` rows after `cursor`. */
+async function readSources(scope: Scope, cursor: number, limit: number): Promise<Source[]> {
+	const w = scope.workshopId;
+	const feed = async (sql: string, params: unknown[], keep: (r: FeedRow) => boolean = () => true): Promise<Source> => {
+		const raw = await select(`SELECT ${FEED_COLUMNS} FROM changes WHERE ${sql}`, params, limit);
+		return { rows: raw.map(feedRow).filter(keep), cut: raw.length === limit };
+	};
+	const reads: Promise<Source>[] = [];
+	if (scope.lead) {
+		// A lead's feed leaves out only the rows of jobs closed before the window (a deleted
+		// job's last upsert and its delete still come, as they always did).
+		const inWindow = new Set(scope.jobs);
+		reads.push(
+			feed('workshop_id = ? AND seq > ? AND (audience IS NULL OR audience = ?)', [w, cursor, scope.userId]).then(async (src) => {
+				const others = [...new Set(src.rows.flatMap((r) => (r.jobId && !inWindow.has(r.jobId) ? [r.jobId] : [])))];
+				if (!others.length) return src;
+				const old = new Set(
+					(
+						await db().query<{ id: string }>(
+							`SELECT id FROM jobs WHERE id IN (${ids(others)}) AND status = 'closed' AND closed_at < UTC_TIMESTAMP(3) - INTERVAL ? DAY`,
+							{ replacements: [...others, scope.days], type: QueryTypes.SELECT }
+						)
+					).map((r) => r.id)
+				);
+				return { rows: src.rows.filter((r) => !r.jobId || !old.has(r.jobId) || r.op !== 'upsert'), cut: src.cut };
+			})
+		);
+	} else {
+		reads.push(feed('workshop_id = ? AND audience = ? AND seq > ?', [w, scope.userId, cursor]));
+		if (scope.jobs.length)
+			reads.push(feed(`workshop_id = ? AND job_id IN (${ids(scope.jobs)}) AND seq > ? AND audience IS NULL`, [w, ...scope.jobs, cursor]));
+		reads.push(
+			feed(`workshop_id = ? AND entity IN ('component', 'sheet', 'customer', 'vehicle') AND seq > ? AND audience IS NULL AND job_id IS NULL`, [w, cursor], (r) =>
+				visibleWithoutJob(r, scope)
+			)
+		);
+	}
+	if (scope.jobs.length) {
+		for (const [entity, table] of Object.entries(APPEND_TABLES)) {
+			reads.push(
+				select(`SELECT * FROM ${table} WHERE job_id IN (${ids(scope.jobs)}) AND seq > ?`, [...scope.jobs, cursor], limit).then((raw) => ({
+					rows: raw.map((r) => ({ seq: Number(r.seq), entity, entityId: r.id as string, version: 1, op: 'upsert' as const, jobId: r.job_id as string, audience: null, record: appendRecord(entity, r) })),
+					cut: raw.length === limit
+				}))
+			);
+		}
+	}
+	return Promise.all(reads);
+}
+
+const toChange = (r: FeedRow): Change => ({ seq: r.seq, entity: r.entity as Change['entity'], entityId: r.entityId, version: r.version, op: r.op, record: r.record });
+
+/** One page of the feed after `cursor`, up to `last` (see the header). */
+async function feedPage(scope: Scope, cursor: number, last: number, limit: number) {
+	const sources = await readSources(scope, cursor, limit);
+	let bound = last;
+	for (const s of sources) if (s.cut && s.rows.length) bound = Math.min(bound, s.rows[s.rows.length - 1].seq);
+	const rows = sources
+		.flatMap((s) => s.rows)
+		.filter((r) => r.seq <= bound)
+		.sort((a, b) => a.seq - b.seq);
+	const page = rows.slice(0, limit);
+	if (rows.length > limit) bound = page[page.length - 1].seq;
+	return { changes: page.map(toChange), cursor: bound, more: bound < last };
+}
+
+/** Drop feed rows older than `days` (in batches); a cursor below `floor_seq` then gets a snapshot. */
+export async function trimFeed(workshopId: string, days = FEED_DAYS): Promise<number> {
+	const [row] = await db().query<{ seq: number | bigint | null }>(
+		'SELECT MAX(seq) AS seq FROM changes WHERE workshop_id = ? AND at < UTC_TIMESTAMP(3) - INTERVAL ? DAY',
+		{ replacements: [workshopId, days], type: QueryTypes.SELECT }
+	);
+	const upTo = Number(row?.seq ?? 0);
+	if (!upTo) return 0;
+	// The floor first: a puller that read the old floor still finds every row it needs.
+	await db().query('UPDATE change_counters SET floor_seq = GREATEST(floor_seq, ?) WHERE workshop_id = ?', { replacements: [upTo, workshopId] });
+	let removed = 0;
+	for (;;) {
+		const n = Number(await db().query('DELETE FROM changes WHERE workshop_id = ? AND seq <= ? LIMIT 10000', { replacements: [workshopId, upTo], type: QueryTypes.BULKDELETE }));
+		removed += n;
+		if (n < 10000) return removed;
+	}
+}
+
+const trimmedAt = new Map<string, number>();
+/** Trim the workshop's feed at most once an hour per process, in the background. */
+function trimNow(workshopId: string) {
+	const now = Date.now();
+	if ((trimmedAt.get(workshopId) ?? 0) > now - 3_600_000) return;
+	trimmedAt.set(workshopId, now);
+	trimFeed(workshopId).catch((e) => console.error('trimming the change feed failed', e));
+}
+
+/** Version 1: the feed from `cursor` (a cursor ahead of the feed or below what it keeps is a 400). */
 export async function pullChanges(user: SessionUser, cursor: number, limit: number) {
-	const last = await lastSeq(user.workshopId);
+	const { last, floor } = await counters(user.workshopId);
 	if (cursor > last) throw new ValidationError({ cursor: `Ahead of the feed (last is ${last})` }, 'Cursor ahead of the feed');
-	const read = await readFeed(user.workshopId, cursor, limit);
-	const page = read.slice(0, limit);
-	const scope = isLead(user) ? null : await scopeOf(user);
-	const changes: Change[] = page
-		.filter((r) => visible(r, user, scope))
-		.map((r) => ({ seq: r.seq, entity: r.entity as Change['entity'], entityId: r.entityId, version: r.version, op: r.op, record: r.record }));
-	const next = page.length ? page[page.length - 1].seq : cursor;
-	return { changes, cursor: next, more: next < last };
+	if (cursor < floor) throw new ValidationError({ cursor: `Older than the feed keeps (from ${floor})` }, 'Cursor older than the feed');
+	trimNow(user.workshopId);
+	return feedPage(await scopeOf(user), cursor, last, limit);
+}
+
+// ---- version 2: snapshot, then the feed ----
+
+type Step =
+	| { kind: 'mutable'; entity: string; model: ModelStatic<Model>; toRecord: (row: never) => Record<string, unknown> }
+	| { kind: 'append'; entity: string; table: string };
+
+/** Every entity of the sync registry, then every append-only table: what a snapshot carries. */
+function snapshotSteps(): Step[] {
+	const steps: Step[] = [];
+	for (const [entity, agg] of Object.entries(AGGREGATES)) {
+		const a = agg as unknown as { def: { model: ModelStatic<Model> }; toRecord: (row: never) => Record<string, unknown> };
+		steps.push({ kind: 'mutable', entity, model: a.def.model, toRecord: a.toRecord });
+	}
+	for (const [entity, table] of Object.entries(APPEND_TABLES)) steps.push({ kind: 'append', entity, table });
+	return steps;
+}
+
+/** The `where` of a mutable entity's rows in scope (null: none of them). */
+function mutableWhere(step: Extract<Step, { kind: 'mutable' }>, scope: Scope): Record<string | symbol, unknown> | null {
+	const live = { workshopId: scope.workshopId, deletedAt: { [SqlOp.is]: null } };
+	const attrs = step.model.getAttributes() as Record<string, unknown>;
+	if (step.entity === 'job') return scope.jobs.length ? { ...live, id: { [SqlOp.in]: scope.jobs } } : null;
+	if (step.entity === 'customer' || step.entity === 'vehicle') {
+		const list = step.entity === 'customer' ? scope.customers : scope.vehicles;
+		return list.length ? { ...live, id: { [SqlOp.in]: list } } : null;
+	}
+	if (step.entity === 'component') return live;
+	if (step.entity === 'sheet') return scope.lead ? live : { ...live, state: 'approved' };
+	if ('jobId' in attrs) return scope.jobs.length ? { ...live, jobId: { [SqlOp.in]: scope.jobs } } : null;
+	return scope.lead ? live : null;
+}
+
+type Token = { base: number; step: number; after: string };
+const encodeToken = (t: Token) => `${t.base}.${t.step}.${t.after}`;
+function decodeToken(s: string, last: number, steps: number): Token {
+	const m = /^(\d{1,15})\.(\d{1,3})\.([0-9a-f-]{0,36})$/.exec(s);
+	if (!m || Number(m[1]) > last || Number(m[2]) > steps) throw new ValidationError({ snapshot: 'Not a snapshot this server started' }, 'Unknown snapshot');
+	return { base: Number(m[1]), step: Number(m[2]), after: m[3] };
+}
+
+/** One snapshot page from `token` (current records with seq ≤ base for the append-only ones). */
+async function snapshotPage(scope: Scope, token: Token, limit: number, include: (s: Step) => boolean = () => true) {
+	const steps = snapshotSteps();
+	const changes: Change[] = [];
+	let { step, after } = token;
+	while (step < steps.length && changes.length < limit) {
+		const s = steps[step];
+		const want = limit - changes.length;
+		let got: { id: string; change: Change }[] = [];
+		if (!include(s)) {
+			// left out of this read
+		} else if (s.kind === 'mutable') {
+			const where = mutableWhere(s, scope);
+			if (where) {
+				const rows = await s.model.findAll({ where: after ? { ...where, id: { ...(where.id as object), [SqlOp.gt]: after } } : where, order: [['id', 'ASC']], limit: want });
+				got = rows.map((row) => {
+					const record = s.toRecord(row as never);
+					const id = row.get('id') as string;
+					return { id, change: { seq: token.base || 1, entity: s.entity as Change['entity'], entityId: id, version: Number(row.get('version') ?? 1), op: 'upsert' as const, record } };
+				});
+			}
+		} else if (scope.jobs.length) {
+			const rows = await select(`SELECT * FROM ${s.table} WHERE job_id IN (${ids(scope.jobs)}) AND seq > ? AND seq <= ?`, [...scope.jobs, Number(after || 0), token.base], want);
+			got = rows.map((r) => ({ id: String(r.seq), change: { seq: Number(r.seq), entity: s.entity as Change['entity'], entityId: r.id as string, version: 1, op: 'upsert' as const, record: appendRecord(s.entity, r) } }));
+		}
+		changes.push(...got.map((g) => g.change));
+		if (got.length === want) after = got[got.length - 1].id;
+		else {
+			step++;
+			after = '';
+		}
+	}
+	return { changes, next: step < steps.length ? encodeToken({ base: token.base, step, after }) : null };
+}
+
+export type PullV2 = { changes: Change[]; cursor: number; more: boolean; snapshot?: string; reset?: true; keep?: string[] };
+
+/** Version 2 (see the header). `snapshot` continues a snapshot this server started. */
+export async function pullV2(user: SessionUser, cursor: number, limit: number, snapshot?: string): Promise<PullV2> {
+	const { last, floor } = await counters(user.workshopId);
+	if (cursor > last) throw new ValidationError({ cursor: `Ahead of the feed (last is ${last})` }, 'Cursor ahead of the feed');
+	trimNow(user.workshopId);
+	const scope = await scopeOf(user, await windowsOf(user.workshopId));
+	const done = (p: { changes: Change[]; cursor: number; more: boolean }, extra: Partial<PullV2> = {}): PullV2 => ({
+		...p,
+		...extra,
+		...(p.more || extra.snapshot ? {} : { keep: scope.jobs })
+	});
+	let token: Token | null = null;
+	let reset = false;
+	if (snapshot) token = decodeToken(snapshot, last, snapshotSteps().length);
+	else if (cursor === 0 || cursor < floor) {
+		token = { base: last, step: 0, after: '' };
+		reset = true;
+	}
+	if (!token) return done(await feedPage(scope, cursor, last, limit));
+	const page = await snapshotPage(scope, token, limit);
+	const r = reset ? { reset: true as const } : {};
+	if (page.next) return { changes: page.changes, cursor: token.base, more: true, snapshot: page.next, ...r };
+	return done({ changes: page.changes, cursor: token.base, more: token.base < last }, r);
+}
+
+/**
+ * GET /api/sync/jobs/:id: one job with everything under it (its customer and vehicle, every
+ * record with a job, every append-only record), as changes the phone applies — how a lead's
+ * phone opens a job older than its window. A job the caller may not see (the rulebook's
+ * `seesJob`) is not there for them (404).
+ */
+export async function jobOnDemand(user: SessionUser, jobId: string): Promise<{ changes: Change[] }> {
+	const job = await Job.findOne({ where: { id: jobId, workshopId: user.workshopId, deletedAt: { [SqlOp.is]: null } } });
+	if (!job || !seesJob({ role: user.role, userId: user.id }, { assigneeId: job.assigneeId })) throw new NotFoundError();
+	const scope: Scope = {
+		lead: isLead(user),
+		userId: user.id,
+		workshopId: user.workshopId,
+		days: 0,
+		jobs: [job.id],
+		customers: job.customerId ? [job.customerId] : [],
+		vehicles: job.vehicleId ? [job.vehicleId] : []
+	};
+	const library = new Set<string>(LIBRARY);
+	const steps = snapshotSteps();
+	const changes: Change[] = [];
+	let token: Token | null = { base: await lastSeq(user.workshopId), step: 0, after: '' };
+	while (token) {
+		while (token.step < steps.length && library.has(steps[token.step].entity)) token = { ...token, step: token.step + 1, after: '' };
+		if (token.step >= steps.length) break;
+		const page = await snapshotPage(scope, token, MAX_PULL_LIMIT_V2, (s) => !library.has(s.entity));
+		changes.push(...page.changes);
+		token = page.next ? decodeToken(page.next, token.base, steps.length) : null;
+	}
+	return { changes };
 }

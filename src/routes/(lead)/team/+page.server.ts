@@ -3,10 +3,12 @@ import { guardPage, LEADS } from '$lib/server/auth/guards';
 import { actorOf } from '$lib/server/auth/types';
 import { AppError, ValidationError } from '$lib/server/errors';
 import { createUser, listUsers } from '$lib/server/services/workshops';
+import { saveWindows, windowsOf } from '$lib/server/sync/scope';
+import { syncWindowsSchema } from '$lib/schemas/sync-settings';
 
 export async function load(event) {
 	const user = guardPage(event, LEADS);
-	return { users: await listUsers(user.workshopId) };
+	return { users: await listUsers(user.workshopId), windows: await windowsOf(user.workshopId) };
 }
 
 export const actions = {
@@ -31,5 +33,19 @@ export const actions = {
 			throw e;
 		}
 		return { invited: keep.email };
+	},
+	/** What phones keep: how long a closed job stays on them (leads and owners). */
+	windows: async (event) => {
+		const user = guardPage(event, LEADS);
+		const data = Object.fromEntries(await event.request.formData()) as Record<string, string>;
+		const values = { phoneDays: String(data.phoneDays ?? ''), deskDays: String(data.deskDays ?? '') };
+		const parsed = syncWindowsSchema.safeParse(values);
+		if (!parsed.success) {
+			const windowFields: Record<string, string> = {};
+			for (const i of parsed.error.issues) windowFields[String(i.path[0])] ??= i.message;
+			return fail(400, { windowValues: values, windowFields });
+		}
+		await saveWindows(user.workshopId, user.id, parsed.data);
+		return { windowsSaved: true };
 	}
 };

@@ -1,0 +1,287 @@
+/**
+ * Pull benchmark: `npm run bench:pull` (not part of `npm test`).
+ *
+ *  1. MariaDB up (the private server, durable commits: `innodb_flush_log_at_trx_commit=1`,
+ *     `sync_binlog=1`), a fresh database `fieldbench_bench_pull`, migrations, a build when
+ *     the sources changed, the app served as `npm start` serves it on a free port.
+ *  2. An invented workshop: a lead, BENCH_TECHS technicians (10), BENCH_JOBS jobs (3,000)
+ *     spread over two years of history (each assigned to a technician, closed two days after
+ *     it was opened, except the last week's), two tests per job, and BENCH_PULL_READINGS
+ *     readings (1,000,000) spread evenly over the tests — one job, test and reading made
+ *     through the services and the push endpoint as templates, then copied with multi-row
+ *     INSERTs (as `bench/sync.ts` does), each row with its own seq in time order; the feed
+ *     rows of the jobs and tests too, dated with their job, and the feed trimmed to what it
+ *     keeps (`trimFeed`, SYNC_FEED_DAYS, 90).
+ *  3. Measured over HTTP (loopback, so the wall time of a request is the server's time plus
+ *     a little): a technician's first sync (`v=2`, cursor 0, pages of the phone's size), the
+ *     lead's first sync, then 500 new readings pushed on one of the technician's open jobs
+ *     and the incremental pull of both; per pull the round trips, the bytes of the answers,
+ *     the changes and the time. Beside them the anchor: the raw indexed SELECT of the same
+ *     readings the technician's first sync carried (`mariadb` driver, `job_id IN (…)`).
+ *  4. Goals (reported, never enforced): a technician's first sync under 1 s of server time
+ *     within a handful of round trips; the pull at least half the rows per second of the raw
+ *     SELECT; the lead's first sync bounded by the window, not the history.
+ *
+ * Knobs (environment): BENCH_PULL_READINGS (1000000), BENCH_JOBS (3000), BENCH_TECHS (10),
+ * BENCH_HISTORY_DAYS (730 for 3,000 jobs, in proportion otherwise: a smaller run is the last
+ * part of the same workshop, with as many jobs a day, so what a phone keeps is the same),
+ * BENCH_PAGE (the phone's page, 2000). All data is invented.
+ */
+import type { ChildProcess } from 'node:child_process';
+import os from 'node:os';
+import mariadb from 'mariadb';
+import { QueryTypes } from 'sequelize';
+import { v7 as uuidv7 } from 'uuid';
+import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../scripts/lib/app';
+import { dbEnv, dropDatabase, ensureDatabase, startServer, stopServer } from '../scripts/lib/mariadb';
+import { Client } from '../tests/helpers/http';
+import { PHONE_PULL_LIMIT } from '../src/lib/sync/protocol';
+
+const DB_NAME = 'fieldbench_bench_pull';
+const READINGS = Number(process.env.BENCH_PULL_READINGS ?? 1_000_000);
+const JOBS = Number(process.env.BENCH_JOBS ?? 3000);
+const TECHS = Number(process.env.BENCH_TECHS ?? 10);
+const PAGE = Number(process.env.BENCH_PAGE ?? PHONE_PULL_LIMIT);
+const PASSWORD = 'bench-password-2026';
+/** Two years for 3,000 jobs; a smaller run is the most recent part of the same workshop (the same jobs a day). */
+const HISTORY_DAYS = Number(process.env.BENCH_HISTORY_DAYS ?? Math.round((730 * JOBS) / 3000));
+const OPEN_DAYS = 7;
+const DAY = 86_400_000;
+
+/** Invented figures: a coil's primary winding. */
+const CHECKS = [
+	{ key: 'primary', label: 'Primary winding', quantity: 'resistance', from: '1', to: '2', condition: 'key_off', unit: 'Ω', openOk: false, bands: [{ fromC: null, toC: null, min: 0.4, max: 0.6 }] }
+];
+const METER = { name: 'Bench meter', ranges: [{ label: '200 Ω', resolution: 0.01, pctOfReading: 0.5, counts: 2 }], leadResistance: 0.1, relativeMode: false };
+
+const sql = (d: Date) => d.toISOString().slice(0, 23).replace('T', ' ');
+const fmt = (n: number, digits = 0) => n.toLocaleString('en-GB', { maximumFractionDigits: digits, minimumFractionDigits: digits });
+
+type PullResult = { trips: number; bytes: number; changes: number; readings: number; ms: number; cursor: number; keep: number };
+
+/** A whole pull as the phone makes it: version 2, pages of PAGE, until `more` is false. */
+async function pull(c: Client, cursor: number): Promise<PullResult> {
+	let snapshot: string | undefined;
+	const r: PullResult = { trips: 0, bytes: 0, changes: 0, readings: 0, ms: 0, cursor, keep: 0 };
+	const t0 = performance.now();
+	for (;;) {
+		const res = await c.get(`/api/sync/pull?v=2&cursor=${r.cursor}&limit=${PAGE}${snapshot ? `&snapshot=${snapshot}` : ''}`);
+		const text = await res.text();
+		r.trips++;
+		r.bytes += Buffer.byteLength(text);
+		if (res.status !== 200) throw new Error(`pull answered ${res.status}: ${text.slice(0, 300)}`);
+		const page = JSON.parse(text) as { changes: { entity: string }[]; cursor: number; more: boolean; snapshot?: string; keep?: string[] };
+		r.changes += page.changes.length;
+		r.readings += page.changes.filter((x) => x.entity === 'reading').length;
+		r.cursor = page.cursor;
+		snapshot = page.snapshot;
+		if (page.keep) r.keep = page.keep.length;
+		if (!page.more) break;
+	}
+	r.ms = performance.now() - t0;
+	return r;
+}
+
+async function main() {
+	const { port, started } = await startServer();
+	const apps: ChildProcess[] = [];
+	for (const signal of ['SIGINT', 'SIGTERM'] as const) {
+		process.once(signal, () => {
+			for (const a of apps) stopServe(a);
+			const done = () => process.exit(130);
+			if (started && !process.env.FIELDBENCH_KEEP_DB) stopServer().then(done, done);
+			else done();
+		});
+	}
+	let pool: mariadb.Pool | null = null;
+	let closeDb: (() => Promise<void>) | null = null;
+	try {
+		dropDatabase(DB_NAME);
+		ensureDatabase(DB_NAME);
+		const env = dbEnv(port, DB_NAME);
+		Object.assign(process.env, env);
+		await migrate();
+		buildIfNeeded();
+		const served = await serve(await freePort(4700), { ...env, ADDRESS_HEADER: 'x-forwarded-for' }, 'inherit');
+		apps.push(served.child);
+		const dbMod = await import('../src/lib/server/db');
+		closeDb = dbMod.closeDb;
+		const { createUser, createWorkshop } = await import('../src/lib/server/services/workshops');
+		const { components, sheets } = await import('../src/lib/server/services/components');
+		const { jobs } = await import('../src/lib/server/services/jobs');
+		const { trimFeed } = await import('../src/lib/server/sync/pull');
+		pool = mariadb.createPool({ host: env.DB_HOST, port: Number(env.DB_PORT), user: env.DB_USER, password: env.DB_PASSWORD, database: env.DB_NAME, connectionLimit: 4, dateStrings: true });
+		const vars = await pool.query("SHOW VARIABLES WHERE Variable_name IN ('innodb_flush_log_at_trx_commit', 'sync_binlog', 'log_bin', 'version')");
+		const settings = Object.fromEntries((vars as { Variable_name: string; Value: string }[]).map((v) => [v.Variable_name, v.Value]));
+
+		// ---- the workshop ----
+		const setupStart = performance.now();
+		const w = await createWorkshop('Hillside Auto Electrics (invented)');
+		const tag = uuidv7().slice(-8);
+		const lead = await createUser(w.id, { email: `lead-${tag}@bench.example`, name: 'Lead Bench', role: 'lead', password: PASSWORD });
+		const leadActor = { userId: lead.id, workshopId: w.id, role: 'lead' as const, deviceId: 'bench-setup' };
+		const techs = [];
+		for (let i = 0; i < TECHS; i++)
+			techs.push(await createUser(w.id, { email: `tech${i + 1}-${tag}@bench.example`, name: `Technician ${i + 1}`, role: 'technician', password: PASSWORD }));
+		const componentId = (await components.create(leadActor, { partNumber: `BP-${tag}`, kind: 'ignition_coil' })).id as string;
+		const draft = await sheets.create(leadActor, { componentId, checks: CHECKS });
+		await sheets.update(leadActor, draft.id as string, draft.version as number, {}, { serverFields: { state: 'approved', approvedBy: lead.id, approvedAt: new Date() } });
+		// Templates through the real paths: a job, a test and a reading pushed by technician 1.
+		const techClient = new Client(served.url, '10.77.0.1');
+		if ((await techClient.signIn(`tech1-${tag}@bench.example`, PASSWORD)).status !== 303) throw new Error('sign-in failed');
+		const tplJob = (await jobs.create(leadActor, { complaint: 'Intermittent misfire under load', assigneeId: techs[0].id })).id as string;
+		const tplTest = uuidv7();
+		const op = (entity: string, entityId: string, fields: Record<string, unknown>) => ({ opId: uuidv7(), entity, entityId, kind: 'create', baseVersion: 0, fields, deviceTime: new Date().toISOString() });
+		const tplReading = uuidv7();
+		const pushed = await techClient.json('POST', '/api/sync/push', {
+			deviceId: 'bench-phone-1',
+			ops: [
+				op('test', tplTest, { jobId: tplJob, componentId, sheetId: draft.id, position: '1', meter: METER, temperature: { mode: 'measured', tempC: 21 } }),
+				op('reading', tplReading, { testId: tplTest, checkKey: 'primary', samples: [{ value: 0.52, unit: 'Ω' }] })
+			]
+		});
+		if (pushed.status !== 200) throw new Error(`template push answered ${pushed.status}`);
+
+		const columnsOf = async (table: string) =>
+			(
+				(await pool!.query(
+					"SELECT COLUMN_NAME AS c FROM information_schema.COLUMNS WHERE TABLE_SCHEMA = ? AND TABLE_NAME = ? AND EXTRA NOT LIKE '%GENERATED%' ORDER BY ORDINAL_POSITION",
+					[DB_NAME, table]
+				)) as { c: string }[]
+			).map((r) => r.c);
+		const rowOf = async (table: string, where: string, arg: unknown) => ((await pool!.query(`SELECT * FROM ${table} WHERE ${where}`, [arg])) as Record<string, unknown>[])[0];
+		const jobCols = await columnsOf('jobs');
+		const testCols = await columnsOf('tests');
+		const readingCols = await columnsOf('readings');
+		const changeCols = await columnsOf('changes');
+		const jobRow = await rowOf('jobs', 'id = ?', tplJob);
+		const testRow = await rowOf('tests', 'id = ?', tplTest);
+		const readingRow = await rowOf('readings', 'id = ?', tplReading);
+		const jobChange = await rowOf('changes', "entity = 'job' AND entity_id = ?", tplJob);
+		const testChange = await rowOf('changes', "entity = 'test' AND entity_id = ?", tplTest);
+
+		/** Multi-row INSERTs of `rows` (objects with `cols`), 1,000 rows a statement, one connection. */
+		async function insert(table: string, cols: string[], rows: Record<string, unknown>[]) {
+			const conn = await pool!.getConnection();
+			try {
+				for (let i = 0; i < rows.length; i += 1000) {
+					const slice = rows.slice(i, i + 1000);
+					const tuple = `(${cols.map(() => '?').join(', ')})`;
+					await conn.query(`INSERT INTO ${table} (${cols.join(', ')}) VALUES ${slice.map(() => tuple).join(', ')}`, slice.flatMap((r) => cols.map((c) => r[c])));
+				}
+			} finally {
+				await conn.release();
+			}
+		}
+
+		const now = Date.now();
+		let seq = Number(((await pool.query('SELECT last_seq FROM change_counters WHERE workshop_id = ?', [w.id])) as { last_seq: number }[])[0].last_seq);
+		const readingsPerTest = Math.max(1, Math.floor(READINGS / (JOBS * 2)));
+		const jobNumber = Number(jobRow.number);
+		let made = 0;
+		const techJobs = new Map<string, { id: string; open: boolean; testIds: string[] }[]>();
+		// Jobs in chunks of 100, in time order: the jobs, their tests, feed rows and readings.
+		for (let start = 0; start < JOBS; start += 100) {
+			const jobRows: Record<string, unknown>[] = [];
+			const testRows: Record<string, unknown>[] = [];
+			const changeRows: Record<string, unknown>[] = [];
+			const readingRows: Record<string, unknown>[] = [];
+			for (let j = start; j < Math.min(JOBS, start + 100); j++) {
+				const opened = new Date(now - HISTORY_DAYS * DAY * (1 - j / JOBS));
+				const open = now - opened.getTime() < OPEN_DAYS * DAY;
+				const closed = open ? null : new Date(opened.getTime() + 2 * DAY);
+				const id = uuidv7();
+				const tech = techs[j % TECHS];
+				jobRows.push({ ...jobRow, id, number: jobNumber + 1 + j, assignee_id: tech.id, status: open ? 'testing' : 'closed', closed_at: closed && sql(closed), created_at: sql(opened), updated_at: sql(closed ?? opened) });
+				changeRows.push({ ...jobChange, seq: ++seq, entity_id: id, job_id: id, record: String(jobChange.record).replaceAll(tplJob, id), at: sql(opened) });
+				const testIds: string[] = [];
+				for (let t = 0; t < 2; t++) {
+					const testId = uuidv7();
+					testIds.push(testId);
+					testRows.push({ ...testRow, id: testId, job_id: id, position: String(t + 1), created_at: sql(opened), updated_at: sql(opened) });
+					changeRows.push({ ...testChange, seq: ++seq, entity_id: testId, job_id: id, record: String(testChange.record).replaceAll(tplTest, testId).replaceAll(tplJob, id), at: sql(opened) });
+					const count = j === JOBS - 1 && t === 1 ? READINGS - made : Math.min(readingsPerTest, READINGS - made);
+					for (let k = 0; k < count; k++) {
+						readingRows.push({ ...readingRow, id: uuidv7(), op_id: uuidv7(), seq: ++seq, job_id: id, test_id: testId, samples: JSON.stringify([{ value: 0.4 + ((k * 7) % 200) / 1000, unit: 'Ω' }]), created_at: sql(opened), device_time: sql(opened) });
+					}
+					made += count;
+				}
+				const list = techJobs.get(tech.id) ?? [];
+				list.push({ id, open, testIds });
+				techJobs.set(tech.id, list);
+			}
+			await insert('jobs', jobCols, jobRows);
+			await insert('tests', testCols, testRows);
+			await insert('changes', changeCols, changeRows);
+			await insert('readings', readingCols, readingRows);
+			if ((start / 100) % 5 === 0) process.stdout.write(`\r  made ${fmt(made)} readings, ${fmt(start + 100)} jobs`);
+		}
+		await pool.query('UPDATE change_counters SET last_seq = ? WHERE workshop_id = ?', [seq, w.id]);
+		await pool.query('ANALYZE TABLE jobs, tests, readings, changes');
+		const trimmed = await trimFeed(w.id);
+		const setupS = (performance.now() - setupStart) / 1000;
+		console.log(`\n  workshop made in ${fmt(setupS, 1)} s: ${fmt(JOBS)} jobs, ${fmt(JOBS * 2)} tests, ${fmt(made + 1)} readings, ${TECHS} technicians; ${fmt(trimmed)} feed rows older than the kept feed trimmed`);
+
+		// ---- measured ----
+		const lc = new Client(served.url, '10.77.0.2');
+		if ((await lc.signIn(`lead-${tag}@bench.example`, PASSWORD)).status !== 303) throw new Error('lead sign-in failed');
+		// One warm-up pull each (compiled code, warm buffer pool), then the measured ones.
+		await pull(techClient, 0);
+		await pull(lc, 0);
+		const techFirst = await pull(techClient, 0);
+		const leadFirst = await pull(lc, 0);
+
+		// The anchor: the raw indexed SELECT of the readings the technician's first sync carried.
+		const [scoped] = (await pool.query(
+			`SELECT GROUP_CONCAT(id) AS ids FROM jobs WHERE workshop_id = ? AND assignee_id = ? AND deleted_at IS NULL AND (status <> 'closed' OR closed_at >= UTC_TIMESTAMP(3) - INTERVAL 30 DAY)`,
+			[w.id, techs[0].id]
+		)) as { ids: string }[];
+		const ids = String(scoped.ids ?? '').split(',').filter(Boolean);
+		let rawRows = 0;
+		let rawMs = Infinity;
+		for (let i = 0; i < 3; i++) {
+			const t0 = performance.now();
+			const rows = (await pool.query(`SELECT * FROM readings WHERE job_id IN (${ids.map(() => '?').join(', ')}) ORDER BY seq`, ids)) as unknown[];
+			rawMs = Math.min(rawMs, performance.now() - t0);
+			rawRows = rows.length;
+		}
+		const explain = (await pool.query(`EXPLAIN SELECT * FROM readings WHERE job_id IN (${ids.map(() => '?').join(', ')}) AND seq > 0 ORDER BY seq LIMIT ${PAGE}`, ids)) as { key: string | null; rows: number }[];
+
+		// 500 new readings on one of technician 1's open jobs, through the push endpoint.
+		const openJob = (techJobs.get(techs[0].id) ?? []).find((j) => j.open);
+		const target = openJob ? { jobId: openJob.id, testId: openJob.testIds[0] } : { jobId: tplJob, testId: tplTest };
+		const fresh = Array.from({ length: 500 }, (_, k) => op('reading', uuidv7(), { testId: target.testId, checkKey: 'primary', samples: [{ value: 0.45 + k / 10000, unit: 'Ω' }] }));
+		const res = await techClient.json('POST', '/api/sync/push', { deviceId: 'bench-phone-1', ops: fresh });
+		if (res.status !== 200) throw new Error(`push answered ${res.status}`);
+		const techNext = await pull(techClient, techFirst.cursor);
+		const leadNext = await pull(lc, leadFirst.cursor);
+
+		// ---- report ----
+		const line = (label: string, r: PullResult) =>
+			console.log(
+				`  ${label.padEnd(34)} ${fmt(r.ms).padStart(7)} ms  ${String(r.trips).padStart(4)} round trips  ${fmt(r.bytes / 1024).padStart(8)} KiB  ${fmt(r.changes).padStart(8)} changes (${fmt(r.readings)} readings)  ${fmt((r.readings / r.ms) * 1000).padStart(9)} readings/s  ${r.keep} jobs kept`
+			);
+		console.log(`\nbench:pull — ${new Date().toISOString().slice(0, 10)}, ${os.cpus().length} × ${os.cpus()[0]?.model ?? 'cpu'}, MariaDB ${settings.version}`);
+		console.log(`  innodb_flush_log_at_trx_commit=${settings.innodb_flush_log_at_trx_commit}, sync_binlog=${settings.sync_binlog} (binary log ${settings.log_bin}); page ${PAGE}`);
+		line('technician, first sync', techFirst);
+		line('lead, first sync', leadFirst);
+		line('technician, after 500 new readings', techNext);
+		line('lead, after 500 new readings', leadNext);
+		const rawRate = (rawRows / rawMs) * 1000;
+		console.log(`  raw indexed SELECT of the technician's readings: ${fmt(rawRows)} rows in ${fmt(rawMs, 1)} ms (${fmt(rawRate)} rows/s; plan: key ${explain[0]?.key}, ${explain[0]?.rows} rows estimated)`);
+		const ratio = techFirst.readings / techFirst.ms / (rawRows / rawMs);
+		console.log(`  goals: technician first sync ${fmt(techFirst.ms)} ms (< 1000: ${techFirst.ms < 1000 ? 'met' : 'NOT met'}), ${techFirst.trips} round trips; pull / raw SELECT rate ${fmt(ratio, 2)} (≥ 0.5: ${ratio >= 0.5 ? 'met' : 'NOT met'}); lead first sync ${fmt(leadFirst.readings)} readings of ${fmt(made + 1)} (the window's jobs: ${leadFirst.keep} of ${JOBS + 1})`);
+		if (techNext.readings !== 500) throw new Error(`the technician's incremental pull carried ${techNext.readings} readings, not 500`);
+		if (rawRows !== techFirst.readings) throw new Error(`the first sync carried ${techFirst.readings} readings, the SELECT ${rawRows}`);
+	} finally {
+		if (pool) await pool.end();
+		if (closeDb) await closeDb();
+		for (const a of apps) stopServe(a);
+		if (started && !process.env.FIELDBENCH_KEEP_DB) await stopServer();
+	}
+}
+
+main().catch((e) => {
+	console.error(e);
+	process.exitCode = 1;
+});

@@ -1,0 +1,11 @@
+import { api } from '$lib/server/api';
+import { NotFoundError } from '$lib/server/errors';
+import { jobOnDemand } from '$lib/server/sync/pull';
+import { uuidSchema } from '$lib/sync/protocol';
+
+/** GET /api/sync/jobs/:id → { changes }: one job and everything under it, for a phone that does not keep it. */
+export const GET = api(async ({ params }, user) => {
+	const id = uuidSchema.safeParse(params.id);
+	if (!id.success) throw new NotFoundError();
+	return jobOnDemand(user, id.data);
+});
