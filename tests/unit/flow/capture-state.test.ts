@@ -18,7 +18,7 @@ const METER = {
 	leadReadAt: '2026-12-02T08:00:00.000Z'
 };
 
-function setup({ hybrid = false, meter = METER } = {}) {
+function setup({ hybrid = false, meter = METER, failSave = false } = {}) {
 	const data: CaptureData = {
 		test: { id: 't1', data: { meter, temperature: { mode: 'overnight' }, position: '1,2' } },
 		job: { id: 'j1', vehicle: { hybrid } },
@@ -30,7 +30,10 @@ function setup({ hybrid = false, meter = METER } = {}) {
 	const patches: Record<string, unknown>[] = [];
 	const drafts: unknown[] = [];
 	const c = new Capture(() => data, {
-		saveReading: async (f) => void saved.push(f),
+		saveReading: async (f) => {
+			if (failSave) throw new Error('storage full');
+			saved.push(f);
+		},
 		patchTest: async (f) => {
 			patches.push(f);
 			Object.assign(data.test.data, f); // as the page's reload would
@@ -90,6 +93,28 @@ describe('the capture screen’s state', () => {
 		});
 		expect((saved[0].deviceResult as { value: number }).value).toBeCloseTo(0.46, 12);
 		expect(c.cell.label).toBe('Cylinder 2 · Primary winding');
+	});
+
+	it('takes keys pressed while a reading is being stored into the next cell', async () => {
+		const { c, saved } = setup();
+		c.open(1);
+		c.setRange('20 kΩ'); // the next cell's own choice, which must not leak into this reading
+		c.open(0);
+		c.type('0,68');
+		const saving = c.save(); // still storing
+		expect(c.cell.label).toBe('Cylinder 2 · Primary winding');
+		c.type('0,6');
+		await saving;
+		expect(saved[0]).toMatchObject({ samples: [{ value: 0.68, unit: 'Ω' }], rangeLabel: '20 Ω' });
+		expect(c.draft).toMatchObject({ entry: '0,6', rangeLabel: '20 kΩ' });
+	});
+
+	it('gives the reading back, typed as it was, when storing it fails', async () => {
+		const { c } = setup({ failSave: true });
+		c.type('0,68');
+		await expect(c.save()).rejects.toThrow('storage full');
+		expect(c.cell.label).toBe('Cylinder 1 · Primary winding');
+		expect(c.draft.entry).toBe('0,68');
 	});
 
 	it('folds a caution that needs no tap once a reading was saved under it', async () => {

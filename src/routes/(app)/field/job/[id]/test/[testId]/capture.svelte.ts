@@ -187,6 +187,16 @@ export class Capture {
 					? [...this.draft.samples, typed]
 					: this.draft.samples;
 		const value = v.result.value;
+		// A caution shown in full at this reading has been read once it is saved.
+		const read = this.caution.needsTap ? [] : this.caution.list.map((l) => l.id);
+		// The next cell opens at once, so keys pressed while the reading is stored go to the
+		// next cell, not into the one being saved; it comes back if the store fails.
+		const draft = this.drafts[cell.key];
+		const { visual, rangeLabel } = this.draft;
+		const index = this.index;
+		delete this.drafts[cell.key];
+		this.index = Math.min(this.index + 1, this.cells.length);
+		this.cautionOpen = false;
 		this.busy = true;
 		try {
 			await this.io.saveReading({
@@ -195,20 +205,22 @@ export class Capture {
 				position: cell.position,
 				samples,
 				...(cell.check.quantity === 'visual'
-					? { visual: this.draft.visual }
-					: { rangeLabel: this.draft.rangeLabel }),
+					? { visual }
+					: { rangeLabel }),
 				deviceResult: {
 					value: value === Infinity ? null : value,
 					verdict: v.result.verdict,
 					...(value === Infinity ? { ol: true } : {})
 				}
 			});
-			// A caution shown in full at a saved reading has been read: it folds from now on.
-			if (!this.caution.needsTap) this.acked = [...new Set([...this.acked, ...this.caution.list.map((l) => l.id)])];
-			delete this.drafts[cell.key];
-			this.index = Math.min(this.index + 1, this.cells.length);
-			this.cautionOpen = false;
+			// …so it folds from now on.
+			this.acked = [...new Set([...this.acked, ...read])];
 			this.keep();
+		} catch (e) {
+			if (draft) this.drafts[cell.key] = draft;
+			this.index = index;
+			this.keep();
+			throw e;
 		} finally {
 			this.busy = false;
 		}
