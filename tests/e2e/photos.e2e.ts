@@ -136,6 +136,8 @@ describe('evidence photos', () => {
 		const reading = page.getByTestId('reading-with-photos').filter({ has: page.locator(`[data-reading="${READING}"]`) });
 		await reading.waitFor({ timeout: 15_000 });
 		const add = reading.getByTestId('add-reading-photo');
+		expect(await add.getAttribute('data-testid')).toBe('add-reading-photo');
+		await reading.getByRole('button', { name: /^Add photo of / }).waitFor();
 		expect((await add.boundingBox())!.height, 'a glove-sized target').toBeGreaterThanOrEqual(56);
 		const [chooser] = await Promise.all([page.waitForEvent('filechooser'), add.click()]);
 		expect(await chooser.element().getAttribute('capture')).toBe('environment');
@@ -156,6 +158,8 @@ describe('evidence photos', () => {
 		await viewer.getByRole('button', { name: 'Close' }).click();
 		await page.goto(`${base}/field/job/${JOB}`);
 		await expect.poll(() => page.getByTestId('photo-item').count()).toBe(2);
+		// The job's test display shows it beside the reading too.
+		await expect.poll(() => page.locator(`[data-reading="${READING}"]`).getByTestId('reading-photo').count()).toBe(1);
 	});
 
 	it('sends it when the connection returns, and the lead sees it on the job', async () => {
