@@ -169,6 +169,7 @@ describe('evidence photos', () => {
 			.poll(async () => (await page.getByTestId('photo-state').allTextContents()).every((t) => t.includes('Sent')), { timeout: 30_000 })
 			.toBe(true);
 		await expect.poll(() => badge().textContent(), { timeout: 30_000 }).toContain('All sent');
+		await page.getByTestId('photo-item').first().scrollIntoViewIfNeeded();
 		await shot(page, 'photos-2-sent');
 
 		desk = await openAt('desk');
