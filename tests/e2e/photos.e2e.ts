@@ -186,7 +186,9 @@ describe('evidence photos', () => {
 		const meta = await sharp(Buffer.from(await full.body())).metadata();
 		expect([meta.format, meta.width, meta.height]).toEqual(['jpeg', 1200, 1600]);
 		expect(meta.exif, 'no camera metadata (location) reaches the workshop').toBeUndefined();
-		// The reading's photo beside that reading in the test's display.
+		// The reading's photo among the job's, captioned with the part and the reading …
+		expect(await desk.page.getByTestId('desk-photo').filter({ hasText: 'TB-IC-2041, Primary winding' }).count()).toBe(1);
+		// … and beside that reading in the test's display.
 		const beside = desk.page.locator(`#test-${TEST}`).getByTestId('desk-reading-photos');
 		await beside.waitFor();
 		await beside.scrollIntoViewIfNeeded();
