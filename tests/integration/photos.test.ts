@@ -1,7 +1,8 @@
 /**
  * Evidence photos against the local fake photo store (s3rver, started by the runner): the
  * upload's checks (type by content, 10 MB, the phone's SHA-256, the object stored before the
- * record), the thumbnail, who may see a photo and its download address, the address's
+ * record), the photo's place (a test and reading of its own job only), the thumbnail, who may
+ * see a photo and its download address, the address's
  * expiry, marks (remove, for the customer) through the API and sync, and the cleanup job.
  *
  * References outside the project: the file signatures are those of the formats' own
@@ -25,15 +26,14 @@ import { previewReport } from '../../src/lib/server/reports/service';
 import { getObject, headObject } from '../../src/lib/server/photos/storage';
 import { jobs } from '../../src/lib/server/services/jobs';
 import { makeWorkshop } from '../helpers/fixtures';
-import { signedIn } from '../helpers/desk';
+import { deskWorkshop, meter, signedIn } from '../helpers/desk';
 import type { Client } from '../helpers/http';
 import { expectError } from '../helpers/records';
 import { create, pullAll, push } from '../helpers/sync';
 
 const base = inject('baseURL');
-type Ws = Awaited<ReturnType<typeof makeWorkshop>>;
-let w: Ws;
-let other: Ws;
+let w: Awaited<ReturnType<typeof deskWorkshop>>;
+let other: Awaited<ReturnType<typeof makeWorkshop>>;
 let as: Record<'lead' | 'technician' | 'apprentice' | 'otherLead', Client>;
 let jobId: string;
 
@@ -57,7 +57,7 @@ function upload(c: Client, id: string, body: Buffer, params: Record<string, stri
 }
 
 beforeAll(async () => {
-	w = await makeWorkshop('Photos');
+	w = await deskWorkshop(base, 'Photos');
 	other = await makeWorkshop('Elsewhere');
 	as = {
 		lead: await signedIn(base, w.users.lead.email),
@@ -141,6 +141,61 @@ describe('upload', () => {
 		const bytes = await jpeg(100, 100);
 		const e = await expectError(await upload(as.technician, uuidv7(), bytes, { jobId }), 400, 'invalid');
 		expect(Object.keys(e.fields!)).toContain('sha256');
+	});
+
+	it('hangs a photo on a reading of its own job and test only, and lists it under that reading', async () => {
+		const otherJob = (await jobs.create(w.users.lead.actor, { complaint: 'No start when hot', assigneeId: w.users.technician.id })).id as string;
+		const test = (job: string) =>
+			create('test', {
+				jobId: job,
+				componentId: w.componentId,
+				sheetId: w.sheetId,
+				partNumber: w.partNumber,
+				position: '1',
+				meter: meter('Bench meter 1', 0.1),
+				temperature: { mode: 'measured', tempC: 20 }
+			});
+		const reading = (testId: string) =>
+			create('reading', { testId, checkKey: 'primary', position: '1', samples: [{ value: 0.62, unit: 'Ω' }], rangeLabel: '200 Ω' });
+		const [t1, t2, tElse] = [test(jobId), test(jobId), test(otherJob)];
+		const [r1, r2, rElse] = [reading(t1.entityId), reading(t2.entityId), reading(tElse.entityId)];
+		const ops = [t1, t2, tElse, r1, r2, rElse];
+		expect((await push(as.technician, 'phone-reading-photos', ops)).map((x) => x.status)).toEqual(Array(ops.length).fill('applied'));
+
+		const bytes = await jpeg(320, 240, 150);
+		const refused: string[] = [];
+		const refuse = async (params: Record<string, string>) => {
+			const id = uuidv7();
+			refused.push(id);
+			const e = await expectError(await upload(as.technician, id, bytes, { jobId, sha256: sha(bytes), ...params }), 400, 'wrong_place');
+			expect(e.message).toMatch(/not .*on this job/);
+		};
+		// A reading of another job (with its own test, or with this job's test) …
+		await refuse({ testId: tElse.entityId, readingId: rElse.entityId });
+		await refuse({ testId: t1.entityId, readingId: rElse.entityId });
+		// … a reading of this job's other test, a reading nobody has, a test of another job.
+		await refuse({ testId: t1.entityId, readingId: r2.entityId });
+		await refuse({ testId: t1.entityId, readingId: uuidv7() });
+		await refuse({ testId: tElse.entityId });
+		expect(await rows('SELECT id FROM photos WHERE id IN (?)', refused)).toEqual([]);
+
+		const onReading = uuidv7();
+		const r = await upload(as.technician, onReading, bytes, { jobId, testId: t1.entityId, readingId: r1.entityId, sha256: sha(bytes), caption: 'Primary winding, cylinder 1' });
+		const body = await r.json();
+		expect(r.status, JSON.stringify(body)).toBe(201);
+		expect(body.photo).toMatchObject({ id: onReading, jobId, testId: t1.entityId, readingId: r1.entityId });
+		// Sent without its test, the photo takes the reading's.
+		const noTest = uuidv7();
+		const r2Photo = await upload(as.technician, noTest, bytes, { jobId, readingId: r2.entityId, sha256: sha(bytes) });
+		expect(r2Photo.status).toBe(201);
+		expect((await r2Photo.json()).photo).toMatchObject({ testId: t2.entityId, readingId: r2.entityId });
+
+		// Listed under its reading on the desk and on the phones (by pull).
+		const list = (await (await as.lead.get(`/api/jobs/${jobId}/photos`)).json()).photos as { id: string; readingId: string | null; testId: string | null }[];
+		expect(list.filter((p) => p.readingId === r1.entityId).map((p) => p.id)).toEqual([onReading]);
+		expect(list.filter((p) => p.readingId === r2.entityId).map((p) => p.id)).toEqual([noTest]);
+		const { changes } = await pullAll(as.lead);
+		expect(changes.find((c) => c.entity === 'photo' && c.entityId === onReading)?.record).toMatchObject({ readingId: r1.entityId, testId: t1.entityId });
 	});
 
 	it('refuses a job of another workshop, or one the technician does not see, as not found', async () => {

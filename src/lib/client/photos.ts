@@ -15,7 +15,8 @@
  *   the photo on the phone with the reason.
  * - `jobPhotoList` is what the job page shows: this phone's photos (from their blobs, so they
  *   show offline) and the job's photos from the workshop (`photo` records from the pull),
- *   less the removed ones.
+ *   less the removed ones; `readingPhotoList` the ones of one reading (shown beside it on the
+ *   test screen).
  */
 import { v7 as uuidv7 } from 'uuid';
 import { photoStates, PHOTO_LONG_SIDE } from '../photos/marks';
@@ -106,6 +107,7 @@ export type PhotoView = {
 	id: string;
 	jobId: string;
 	testId: string | null;
+	readingId: string | null;
 	caption: string | null;
 	/** Where the thumbnail comes from (a blob address on this phone, else the workshop). */
 	thumb: string;
@@ -135,6 +137,7 @@ export async function jobPhotoList(db: LocalDb, jobId: string): Promise<PhotoVie
 		id: p.id,
 		jobId,
 		testId: p.testId,
+		readingId: p.readingId ?? null,
 		caption: p.caption,
 		thumb: blobUrl(p),
 		full: blobUrl(p),
@@ -149,6 +152,7 @@ export async function jobPhotoList(db: LocalDb, jobId: string): Promise<PhotoVie
 			id: r.id,
 			jobId,
 			testId: (r.data.testId as string | null) ?? null,
+			readingId: (r.data.readingId as string | null) ?? null,
 			caption: (r.data.caption as string | null) ?? null,
 			thumb: `/api/photos/${r.id}/file`,
 			full: `/api/photos/${r.id}/file?size=full`,
@@ -158,6 +162,11 @@ export async function jobPhotoList(db: LocalDb, jobId: string): Promise<PhotoVie
 		});
 	}
 	return out.filter((p) => !states.get(p.id)?.removed).sort((a, b) => (a.id < b.id ? -1 : 1));
+}
+
+/** The photos of one reading of the job, oldest first, without the removed ones. */
+export async function readingPhotoList(db: LocalDb, jobId: string, readingId: string): Promise<PhotoView[]> {
+	return (await jobPhotoList(db, jobId)).filter((p) => p.readingId === readingId);
 }
 
 type Outcome = 'sent' | 'retry' | 'signed_out' | 'refused';

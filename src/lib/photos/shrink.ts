@@ -30,6 +30,7 @@ export function uploadProblemWords(status: number, code?: string): string {
 	if (status === 415) return 'Not a picture the workshop takes (JPEG, PNG or WebP)';
 	if (status === 404) return 'The job is no longer yours, so the workshop did not take it';
 	if (status === 409) return 'The workshop already has another photo under this name';
+	if (code === 'wrong_place') return 'The test or reading it was taken for is not on the workshop';
 	if (code === 'unreadable_image') return 'The picture could not be opened; take it again';
 	return 'The workshop did not take this photo';
 }

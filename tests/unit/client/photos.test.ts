@@ -2,7 +2,8 @@
  * The phone's photo store (IndexedDB through fake-indexeddb): the upgrade from local database
  * version 1 keeps what the phone held; the waiting count; removing a photo that was never
  * sent drops it, removing a sent one queues a "removed" mark; the job's list leaves removed
- * photos out and shows the workshop's photos from pulled records.
+ * photos out and shows the workshop's photos from pulled records; a reading's list holds the
+ * photos of that reading only, the phone's and the workshop's.
  */
 import 'fake-indexeddb/auto';
 import { openDB } from 'idb';
@@ -10,13 +11,17 @@ import { v7 as uuidv7 } from 'uuid';
 import { describe, expect, it } from 'vitest';
 import { dbNameFor, getRecord, openLocalDb, type LocalDb, type LocalPhoto } from '../../../src/lib/client/local-db';
 import { listOutbox } from '../../../src/lib/client/outbox';
-import { countPhotos, jobPhotoList, removePhoto } from '../../../src/lib/client/photos';
+import { countPhotos, jobPhotoList, readingPhotoList, removePhoto } from '../../../src/lib/client/photos';
 
-const photo = (jobId: string, state: LocalPhoto['state'] = 'waiting'): LocalPhoto => ({
+const photo = (
+	jobId: string,
+	state: LocalPhoto['state'] = 'waiting',
+	at: { testId?: string; readingId?: string } = {}
+): LocalPhoto => ({
 	id: uuidv7(),
 	jobId,
-	testId: null,
-	readingId: null,
+	testId: at.testId ?? null,
+	readingId: at.readingId ?? null,
 	caption: null,
 	blob: new Blob([new Uint8Array([0xff, 0xd8, 0xff, 0xd9])], { type: 'image/jpeg' }),
 	type: 'image/jpeg',
@@ -81,5 +86,33 @@ describe('photos on the phone', () => {
 			].sort((a, b) => (String(a[0]) < String(b[0]) ? -1 : 1))
 		);
 		expect(list.find((p) => p.id === theirs)?.thumb).toBe(`/api/photos/${theirs}/file`);
+	});
+
+	it('lists a reading’s photos under that reading only, the phone’s and the workshop’s', async () => {
+		const db = await openLocalDb(uuidv7());
+		const jobId = uuidv7();
+		const [testId, readingA, readingB] = [uuidv7(), uuidv7(), uuidv7()];
+		const ofA = photo(jobId, 'waiting', { testId, readingId: readingA });
+		const ofB = photo(jobId, 'waiting', { testId, readingId: readingB });
+		const ofTest = photo(jobId, 'waiting', { testId });
+		for (const p of [ofA, ofB, ofTest]) await db.put('photos', p);
+		const pulled = uuidv7();
+		await db.put('records', { entity: 'photo', id: pulled, version: 1, jobId, data: { jobId, testId, readingId: readingA, createdBy: 'u2' }, deleted: false, pending: 0, updatedAt: '' });
+		// A photo of the same reading id on another job is not this job's.
+		await db.put('photos', photo(uuidv7(), 'waiting', { testId, readingId: readingA }));
+
+		const ofReadingA = await readingPhotoList(db, jobId, readingA);
+		expect(ofReadingA.map((p) => [p.id, p.mine])).toEqual(
+			[
+				[ofA.id, true],
+				[pulled, false]
+			].sort((a, b) => (String(a[0]) < String(b[0]) ? -1 : 1))
+		);
+		expect(ofReadingA.every((p) => p.readingId === readingA && p.testId === testId)).toBe(true);
+		expect((await readingPhotoList(db, jobId, readingB)).map((p) => p.id)).toEqual([ofB.id]);
+		// Removed, it leaves the reading's list too.
+		await removePhoto(db, ofA);
+		expect((await readingPhotoList(db, jobId, readingA)).map((p) => p.id)).toEqual([pulled]);
+		expect((await jobPhotoList(db, jobId)).find((p) => p.id === ofTest.id)?.readingId).toBeNull();
 	});
 });

@@ -5,6 +5,9 @@
  * its record's fields (job, test or reading, caption) and the SHA-256 it computed. In order:
  *  1. the fields (400 naming the field) and the job, which the actor must see (404 otherwise,
  *     as for another workshop's job; the rulebook's `refuseAppend`, as for any record of a job);
+ *     a test must be one of the job's, a reading one of the job's readings (and of the test
+ *     sent with it; the test is taken from the reading when none is sent) — 400 `wrong_place`
+ *     otherwise (`photoPlace`);
  *  2. the bytes: at most `MAX_PHOTO_BYTES` (413, checked by the route before reading), a JPEG,
  *     PNG or WebP by their first bytes, never by a name or a declared type (415), the SHA-256
  *     the phone sent (400 `checksum_mismatch`: sent again, it arrives whole), a picture `sharp`
@@ -129,6 +132,43 @@ async function jobForAppend(actor: Actor, jobId: string, t?: Transaction) {
 	return found!;
 }
 
+/** 400: the test or reading a photo was sent for is not of its job (or the reading not of its test). */
+class WrongPlaceError extends AppError {
+	constructor(field: 'testId' | 'readingId') {
+		super(
+			400,
+			'wrong_place',
+			field === 'readingId'
+				? 'This photo was taken for a reading the workshop does not have on this job and test'
+				: 'This photo was taken for a test the workshop does not have on this job'
+		);
+	}
+}
+
+/**
+ * Where a photo hangs: its test must be one of its job's, its reading one of its job's
+ * readings and of its test; returns the test (the reading's when none was sent).
+ */
+async function photoPlace(actor: Actor, f: { jobId: string; testId?: string | null; readingId?: string | null }) {
+	const one = async (table: 'tests' | 'readings', id: string) => {
+		const [row] = await db().query<{ job_id: string; test_id?: string }>(
+			`SELECT job_id${table === 'readings' ? ', test_id' : ''} FROM ${table} WHERE workshop_id = ? AND id = ?`,
+			{ replacements: [actor.workshopId, id], type: QueryTypes.SELECT }
+		);
+		return row ?? null;
+	};
+	if (f.readingId) {
+		const r = await one('readings', f.readingId);
+		if (!r || r.job_id !== f.jobId || (f.testId && r.test_id !== f.testId)) throw new WrongPlaceError('readingId');
+		return r.test_id!;
+	}
+	if (f.testId) {
+		const t = await one('tests', f.testId);
+		if (!t || t.job_id !== f.jobId) throw new WrongPlaceError('testId');
+	}
+	return f.testId ?? null;
+}
+
 /** Store one uploaded photo (see the header); returns `{ photo, created }`. */
 export async function uploadPhoto(
 	actor: Actor,
@@ -149,6 +189,7 @@ export async function uploadPhoto(
 		return { photo: appendRecord('photo', existing), created: false };
 	}
 	await jobForAppend(actor, f.jobId);
+	const testId = await photoPlace(actor, f);
 	if (bytes.length > MAX_PHOTO_BYTES) throw new PhotoTooLargeError();
 	const kind = sniffImageType(bytes);
 	if (!kind)
@@ -189,7 +230,7 @@ export async function uploadPhoto(
 				actor.deviceId ?? 'web',
 				sqlDateTime(f.deviceTime ? new Date(f.deviceTime) : new Date()),
 				f.jobId,
-				f.testId ?? null,
+				testId,
 				f.readingId ?? null,
 				f.caption || null,
 				kind.type,
@@ -201,7 +242,7 @@ export async function uploadPhoto(
 				thumbKey
 			]
 		);
-		const audit = Object.entries({ jobId: f.jobId, testId: f.testId ?? null, caption: f.caption ?? null, sha256: f.sha256 }).map(
+		const audit = Object.entries({ jobId: f.jobId, testId, readingId: f.readingId ?? null, caption: f.caption ?? null, sha256: f.sha256 }).map(
 			([field, v]) => ({ field, old: null, new: v })
 		);
 		await writeAudit(t, actor, 'photo', id, 'create', audit, opId);
