@@ -48,6 +48,9 @@ describe('circuit tests offline', () => {
 		await page().goto(`${base}/field/job/${JOB}`);
 		// Seeded and judged by the server: 12.08 V at 8 °C → 12.16 V at 26.7 °C → 39 % (BCI table): charge and re-test.
 		await expect.poll(() => page().getByTestId('circuit-tests').textContent(), { timeout: 15_000 }).toContain('Charge and re-test — the battery is 39 % charged');
+		// A job with only circuit tests does not say it has no tests above them.
+		expect(await page().getByText('No tests yet.').count()).toBe(0);
+		expect(await page().getByText('None besides the battery and circuit tests below.').count()).toBe(1);
 		// The app shell comes from the service worker once it controls the page.
 		await expect.poll(() => page().evaluate(() => Boolean(navigator.serviceWorker.controller)), { timeout: 15_000 }).toBe(true);
 		await phone.context.setOffline(true);
@@ -73,6 +76,7 @@ describe('circuit tests offline', () => {
 		await fill('Lowest voltage while cranking', '10,1');
 		await expect.poll(() => result().getByRole('heading', { level: 2 }).textContent()).toContain('OK');
 		expect(await page().getByTestId('circuit-working').textContent()).toContain('610 A ÷ 680 A (EN 50342-1) = 90 % of the rating');
+		expect(await page().getByRole('heading', { name: 'How it was worked out' }).count()).toBe(1);
 		await fill('Battery temperature', 'warm');
 		expect(await page().getByText('Type battery temperature as a number').count()).toBe(1);
 		await fill('Battery temperature', '21');

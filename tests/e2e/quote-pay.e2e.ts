@@ -46,9 +46,12 @@ describe('quote, approval and payment', () => {
 		const { page, context } = tech;
 		await signInAs(tech, base, 'tech@tallowbridge.example');
 		await page.waitForFunction(() => Boolean(navigator.serviceWorker.controller), null, { timeout: 20_000 });
+		// The first sync after signing in brings the job; opening it before then finds nothing.
+		await page.getByTestId('job-list').getByText('Misfire on the driveway, coil suspected').waitFor({ timeout: 20_000 });
 		await page.goto(`${base}/field/job/${JOB}`);
 		await page.getByRole('link', { name: 'Quote for the customer' }).click();
 		await page.getByText('Pencil ignition coil TB-IC-2041').waitFor();
+		await expect.poll(() => page.title()).toMatch(/^Quote · Job/);
 		expect(await axeViolations(page)).toEqual([]);
 
 		await context.setOffline(true);
