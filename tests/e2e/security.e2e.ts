@@ -30,7 +30,10 @@ describe('the content security policy in Chromium', () => {
 		for (const path of ['/field', `/field/job/${JOB_1001}`, '/field/sync', '/field/meters', '/jobs', `/jobs/${JOB_1001}`, '/customers', '/vehicles', '/library', '/team', '/password', '/sign-out']) {
 			await page.goto(base + path);
 			await page.waitForLoadState('networkidle');
-			expect([path, await page.evaluate(async () => (await document.fonts.ready, document.fonts.check('700 20px "Roboto Condensed"')))]).toEqual([path, true]);
+			// The phone's pages draw from IndexedDB after the load, so the bold face may come a moment later.
+			await expect
+				.poll(async () => [path, await page.evaluate(async () => (await document.fonts.ready, document.fonts.check('700 20px "Roboto Condensed"')))], { timeout: 10_000 })
+				.toEqual([path, true]);
 		}
 		// The prerendered shell, answered by the service worker with no signal.
 		await phone.context.setOffline(true);
