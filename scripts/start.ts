@@ -53,9 +53,12 @@ console.log(`\nFieldbench is running at ${url}`);
 for (const sig of ['SIGINT', 'SIGTERM'] as const) {
 	process.on(sig, async () => {
 		if (child.pid) process.kill(-child.pid, sig);
-		if (mail?.started) await stopMailServer();
-		if (pay?.started) await stopPayServer('fieldbench');
-		if (store?.started) await stopS3Server();
+		// All at once, so a terminal that ends this process soon after Ctrl+C leaves none running.
+		await Promise.all([
+			mail?.started ? stopMailServer() : null,
+			pay?.started ? stopPayServer('fieldbench') : null,
+			store?.started ? stopS3Server() : null
+		]);
 		process.exit(0);
 	});
 }
