@@ -22,6 +22,18 @@ export function api(fn: Handler, opts: { roles?: readonly Role[] } = {}) {
 	};
 }
 
+/**
+ * An answer whose JSON text is already written (the sync pull writes its own,
+ * `sync/pull-json.ts`). With `since` (a `performance.now()`), a `Server-Timing` header says
+ * how long the handler took (`handler;dur=…` in ms, W3C Server Timing), for benchmarks and
+ * the browser's network panel.
+ */
+export function jsonText(body: string | Uint8Array, since?: number): Response {
+	const headers: Record<string, string> = { 'content-type': 'application/json' };
+	if (since !== undefined) headers['server-timing'] = `handler;dur=${(performance.now() - since).toFixed(1)}`;
+	return new Response(body as BodyInit, { headers }); // a Buffer is a valid body (its type says ArrayBufferLike)
+}
+
 /** Parse the JSON body; a malformed body is a 400 like any invalid input. */
 export async function readJson(request: Request): Promise<unknown> {
 	try {

@@ -34,14 +34,16 @@ export function groupByTable<T, V>(
 }
 
 const camelCache = new Map<string, string>();
-const camel = (s: string) => {
+/** A column's name as the record's key: `server_result` → `serverResult`. */
+export const camel = (s: string) => {
 	let c = camelCache.get(s);
 	if (c === undefined) camelCache.set(s, (c = s.replace(/_([a-z])/g, (_m, x: string) => x.toUpperCase())));
 	return c;
 };
-const JSON_COLUMNS = new Set(['samples', 'visual', 'device_result', 'server_result', 'before_counts', 'after_counts', 'inputs']);
+/** Columns holding JSON text. */
+export const JSON_COLUMNS = new Set(['samples', 'visual', 'device_result', 'server_result', 'before_counts', 'after_counts', 'inputs']);
 /** Never sent: the workshop, feed bookkeeping and where a photo's bytes are stored. */
-const HIDDEN = new Set(['workshop_id', 'op_id', 'seq', 'object_key', 'thumb_key', 'purged_at']);
+export const HIDDEN_COLUMNS = new Set(['workshop_id', 'op_id', 'seq', 'object_key', 'thumb_key', 'purged_at']);
 /** JSON text as the record carries it (the reviver, for ±Infinity, only when the text holds one). */
 const json = (v: string) => (v.includes('Infinity') ? parseNumbers(v) : JSON.parse(v));
 
@@ -49,7 +51,7 @@ const json = (v: string) => (v.includes('Infinity') ? parseNumbers(v) : JSON.par
 export function appendRecord(entity: string, row: Record<string, unknown>): Record<string, unknown> {
 	const out: Record<string, unknown> = { entity };
 	for (const k in row) {
-		if (HIDDEN.has(k)) continue;
+		if (HIDDEN_COLUMNS.has(k)) continue;
 		const v = row[k];
 		out[camel(k)] =
 			JSON_COLUMNS.has(k) && typeof v === 'string'

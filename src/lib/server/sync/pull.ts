@@ -28,11 +28,13 @@ import { db } from '../db';
 import { NotFoundError, ValidationError } from '../errors';
 import { MAX_PULL_LIMIT_V2, type Change } from '../../sync/protocol';
 import { Job } from '../db/models';
+import { rawRows } from '../db/raw';
 import { isLead } from '../../roles';
 import { seesJob } from '../../rules';
-import { APPEND_TABLES, appendRecord } from '../db/append-tables';
+import { APPEND_TABLES } from '../db/append-tables';
 import { AGGREGATES } from './registry';
 import { LIBRARY, scopeOf, visibleWithoutJob, windowsOf, type FeedRow, type Scope } from './scope';
+import { FEED_COLUMNS, appendWriter, feedChange, feedText, objectChange, pageJson, type ChangeText } from './pull-json';
 
 /** How long the change feed keeps its rows; an older cursor gets a snapshot (v2). */
 export const FEED_DAYS = Number(process.env.SYNC_FEED_DAYS ?? 90);
@@ -49,36 +51,30 @@ async function counters(workshopId: string): Promise<{ last: number; floor: numb
 	return { last: Number(row?.last_seq ?? 0), floor: Number(row?.floor_seq ?? 0) };
 }
 
-const FEED_COLUMNS = 'seq, entity, entity_id, version, op, job_id, audience, record';
 const ids = (xs: string[]) => xs.map(() => '?').join(', ');
 
-function feedRow(r: Record<string, unknown>): FeedRow {
-	return {
-		seq: Number(r.seq),
-		entity: r.entity as string,
-		entityId: r.entity_id as string,
-		version: r.version as number,
-		op: r.op as FeedRow['op'],
-		jobId: r.job_id as string | null,
-		audience: r.audience as string | null,
-		record: r.record ? JSON.parse(r.record as string) : null
-	};
-}
-
 type Source = { rows: FeedRow[]; cut: boolean };
+type AppendSource = { rows: ChangeText[]; cut: boolean };
 
-async function select(sql: string, params: unknown[], limit: number): Promise<Record<string, unknown>[]> {
-	return db().query<Record<string, unknown>>(`${sql} ORDER BY seq LIMIT ?`, { replacements: [...params, limit], type: QueryTypes.SELECT });
+/** At most `limit` rows of `sql` in seq order, read with the driver alone (`rawRows`). */
+const select = (sql: string, params: unknown[], limit: number) => rawRows(`${sql} ORDER BY seq LIMIT ?`, [...params, limit]);
+
+/** At most `limit` rows of an append-only table in seq order, as changes. */
+async function appendRows(entity: string, sql: string, params: unknown[], limit: number): Promise<ChangeText[]> {
+	const { rows, columns } = await select(sql, params, limit);
+	if (!rows.length) return [];
+	const write = appendWriter(entity, columns);
+	return rows.map(write);
 }
 
 /** The sources of one page: each read from its index, at most `limit` rows after `cursor`. */
-async function readSources(scope: Scope, cursor: number, limit: number): Promise<Source[]> {
+async function readSources(scope: Scope, cursor: number, limit: number): Promise<(Source | AppendSource)[]> {
 	const w = scope.workshopId;
 	const feed = async (sql: string, params: unknown[], keep: (r: FeedRow) => boolean = () => true): Promise<Source> => {
-		const raw = await select(`SELECT ${FEED_COLUMNS} FROM changes WHERE ${sql}`, params, limit);
-		return { rows: raw.map(feedRow).filter(keep), cut: raw.length === limit };
+		const raw = (await select(`SELECT ${FEED_COLUMNS} FROM changes WHERE ${sql}`, params, limit)).rows;
+		return { rows: raw.map(feedText).filter(keep), cut: raw.length === limit };
 	};
-	const reads: Promise<Source>[] = [];
+	const reads: Promise<Source | AppendSource>[] = [];
 	if (scope.lead) {
 		// A lead's feed leaves out only the rows of jobs closed before the window (a deleted
 		// job's last upsert and its delete still come, as they always did).
@@ -111,30 +107,29 @@ async function readSources(scope: Scope, cursor: number, limit: number): Promise
 	if (scope.jobs.length) {
 		for (const [entity, table] of Object.entries(APPEND_TABLES)) {
 			reads.push(
-				select(`SELECT * FROM ${table} WHERE job_id IN (${ids(scope.jobs)}) AND seq > ?`, [...scope.jobs, cursor], limit).then((raw) => ({
-					rows: raw.map((r) => ({ seq: Number(r.seq), entity, entityId: r.id as string, version: 1, op: 'upsert' as const, jobId: r.job_id as string, audience: null, record: appendRecord(entity, r) })),
-					cut: raw.length === limit
-				}))
+				appendRows(entity, `SELECT * FROM ${table} WHERE job_id IN (${ids(scope.jobs)}) AND seq > ?`, [...scope.jobs, cursor], limit).then((rows) => ({ rows, cut: rows.length === limit }))
 			);
 		}
 	}
 	return Promise.all(reads);
 }
 
-const toChange = (r: FeedRow): Change => ({ seq: r.seq, entity: r.entity as Change['entity'], entityId: r.entityId, version: r.version, op: r.op, record: r.record });
+const asText = (r: FeedRow | ChangeText): ChangeText => ('json' in r ? r : feedChange(r));
+
+type Page = { changes: ChangeText[]; cursor: number; more: boolean };
 
 /** One page of the feed after `cursor`, up to `last` (see the header). */
-async function feedPage(scope: Scope, cursor: number, last: number, limit: number) {
+async function feedPage(scope: Scope, cursor: number, last: number, limit: number): Promise<Page> {
 	const sources = await readSources(scope, cursor, limit);
 	let bound = last;
 	for (const s of sources) if (s.cut && s.rows.length) bound = Math.min(bound, s.rows[s.rows.length - 1].seq);
-	const rows = sources
+	const rows = (sources as { rows: (FeedRow | ChangeText)[] }[])
 		.flatMap((s) => s.rows)
 		.filter((r) => r.seq <= bound)
 		.sort((a, b) => a.seq - b.seq);
 	const page = rows.slice(0, limit);
 	if (rows.length > limit) bound = page[page.length - 1].seq;
-	return { changes: page.map(toChange), cursor: bound, more: bound < last };
+	return { changes: page.map(asText), cursor: bound, more: bound < last };
 }
 
 /** Drop feed rows older than `days` (in batches); a cursor below `floor_seq` then gets a snapshot. */
@@ -170,7 +165,8 @@ export async function pullChanges(user: SessionUser, cursor: number, limit: numb
 	if (cursor > last) throw new ValidationError({ cursor: `Ahead of the feed (last is ${last})` }, 'Cursor ahead of the feed');
 	if (cursor < floor) throw new ValidationError({ cursor: `Older than the feed keeps (from ${floor})` }, 'Cursor older than the feed');
 	trimNow(user.workshopId);
-	return feedPage(await scopeOf(user), cursor, last, limit);
+	const page = await feedPage(await scopeOf(user), cursor, last, limit);
+	return pageJson(page.changes, { cursor: page.cursor, more: page.more });
 }
 
 // ---- version 2: snapshot, then the feed ----
@@ -213,54 +209,74 @@ function decodeToken(s: string, last: number, steps: number): Token {
 	return { base: Number(m[1]), step: Number(m[2]), after: m[3] };
 }
 
-/** One snapshot page from `token` (current records with seq ≤ base for the append-only ones). */
+/** One step's rows from `after`, at most `want` (the step's own order: id, or seq for append-only rows). */
+async function readStep(s: Step, scope: Scope, base: number, after: string, want: number): Promise<{ id: string; change: ChangeText }[]> {
+	if (s.kind === 'mutable') {
+		const where = mutableWhere(s, scope);
+		if (!where) return [];
+		const rows = await s.model.findAll({ where: after ? { ...where, id: { ...(where.id as object), [SqlOp.gt]: after } } : where, order: [['id', 'ASC']], limit: want });
+		return rows.map((row) => {
+			const id = row.get('id') as string;
+			const change: Change = { seq: base || 1, entity: s.entity as Change['entity'], entityId: id, version: Number(row.get('version') ?? 1), op: 'upsert', record: s.toRecord(row as never) };
+			return { id, change: objectChange(change) };
+		});
+	}
+	if (!scope.jobs.length) return [];
+	const rows = await appendRows(s.entity, `SELECT * FROM ${s.table} WHERE job_id IN (${ids(scope.jobs)}) AND seq > ? AND seq <= ?`, [...scope.jobs, Number(after || 0), base], want);
+	return rows.map((change) => ({ id: String(change.seq), change }));
+}
+
+/**
+ * One snapshot page from `token` (current records with seq ≤ base for the append-only ones).
+ * Steps are read a group at a time, the reads of a group at once (one wait instead of one a
+ * table): the mutable entities together with the first append-only table, then the current
+ * step, and when it ends within the page every append-only table after it. A group's rows
+ * are taken in step order until the page is full; what did not fit is read again on the
+ * next page.
+ */
 async function snapshotPage(scope: Scope, token: Token, limit: number, include: (s: Step) => boolean = () => true) {
 	const steps = snapshotSteps();
-	const changes: Change[] = [];
+	const changes: ChangeText[] = [];
 	let { step, after } = token;
+	let ended = false; // the step before ended within this page
 	while (step < steps.length && changes.length < limit) {
-		const s = steps[step];
 		const want = limit - changes.length;
-		let got: { id: string; change: Change }[] = [];
-		if (!include(s)) {
-			// left out of this read
-		} else if (s.kind === 'mutable') {
-			const where = mutableWhere(s, scope);
-			if (where) {
-				const rows = await s.model.findAll({ where: after ? { ...where, id: { ...(where.id as object), [SqlOp.gt]: after } } : where, order: [['id', 'ASC']], limit: want });
-				got = rows.map((row) => {
-					const record = s.toRecord(row as never);
-					const id = row.get('id') as string;
-					return { id, change: { seq: token.base || 1, entity: s.entity as Change['entity'], entityId: id, version: Number(row.get('version') ?? 1), op: 'upsert' as const, record } };
-				});
+		let end = step + 1;
+		if (steps[step].kind === 'mutable') {
+			while (end < steps.length && steps[end].kind === 'mutable') end++;
+			if (end < steps.length) end++; // and the first append-only table (it usually fills the rest)
+		} else if (ended && steps[step - 1]?.kind === 'append') end = steps.length;
+		const group = steps.slice(step, end);
+		const reads = await Promise.all(group.map((s, k) => (include(s) ? readStep(s, scope, token.base, k === 0 ? after : '', want) : Promise.resolve([]))));
+		for (const got of reads) {
+			const room = limit - changes.length;
+			const taken = got.length > room ? got.slice(0, room) : got;
+			for (const g of taken) changes.push(g.change);
+			// A step is done when it gave fewer rows than were wanted of it and all fit.
+			if (got.length < want && taken.length === got.length) {
+				step++;
+				after = '';
+				ended = true;
+				continue;
 			}
-		} else if (scope.jobs.length) {
-			const rows = await select(`SELECT * FROM ${s.table} WHERE job_id IN (${ids(scope.jobs)}) AND seq > ? AND seq <= ?`, [...scope.jobs, Number(after || 0), token.base], want);
-			got = rows.map((r) => ({ id: String(r.seq), change: { seq: Number(r.seq), entity: s.entity as Change['entity'], entityId: r.id as string, version: 1, op: 'upsert' as const, record: appendRecord(s.entity, r) } }));
-		}
-		changes.push(...got.map((g) => g.change));
-		if (got.length === want) after = got[got.length - 1].id;
-		else {
-			step++;
-			after = '';
+			if (taken.length) after = taken[taken.length - 1].id;
+			ended = false;
+			break;
 		}
 	}
 	return { changes, next: step < steps.length ? encodeToken({ base: token.base, step, after }) : null };
 }
 
-export type PullV2 = { changes: Change[]; cursor: number; more: boolean; snapshot?: string; reset?: true; keep?: string[] };
-
-/** Version 2 (see the header). `snapshot` continues a snapshot this server started. */
-export async function pullV2(user: SessionUser, cursor: number, limit: number, snapshot?: string): Promise<PullV2> {
-	const { last, floor } = await counters(user.workshopId);
+/**
+ * Version 2 (see the header), as the answer's JSON text: `{ changes, cursor, more, snapshot?,
+ * reset?, keep? }`. `snapshot` continues a snapshot this server started.
+ */
+export async function pullV2(user: SessionUser, cursor: number, limit: number, snapshot?: string): Promise<Buffer> {
+	const [{ last, floor }, scope] = await Promise.all([counters(user.workshopId), windowsOf(user.workshopId).then((w) => scopeOf(user, w))]);
 	if (cursor > last) throw new ValidationError({ cursor: `Ahead of the feed (last is ${last})` }, 'Cursor ahead of the feed');
 	trimNow(user.workshopId);
-	const scope = await scopeOf(user, await windowsOf(user.workshopId));
-	const done = (p: { changes: Change[]; cursor: number; more: boolean }, extra: Partial<PullV2> = {}): PullV2 => ({
-		...p,
-		...extra,
-		...(p.more || extra.snapshot ? {} : { keep: scope.jobs })
-	});
+	const done = (p: Page, extra: { snapshot?: string; reset?: true } = {}) =>
+		pageJson(p.changes, { cursor: p.cursor, more: p.more, ...extra, ...(p.more || extra.snapshot ? {} : { keep: scope.jobs }) });
 	let token: Token | null = null;
 	let reset = false;
 	if (snapshot) token = decodeToken(snapshot, last, snapshotSteps().length);
@@ -271,17 +287,17 @@ export async function pullV2(user: SessionUser, cursor: number, limit: number, s
 	if (!token) return done(await feedPage(scope, cursor, last, limit));
 	const page = await snapshotPage(scope, token, limit);
 	const r = reset ? { reset: true as const } : {};
-	if (page.next) return { changes: page.changes, cursor: token.base, more: true, snapshot: page.next, ...r };
+	if (page.next) return done({ changes: page.changes, cursor: token.base, more: true }, { snapshot: page.next, ...r });
 	return done({ changes: page.changes, cursor: token.base, more: token.base < last }, r);
 }
 
 /**
  * GET /api/sync/jobs/:id: one job with everything under it (its customer and vehicle, every
  * record with a job, every append-only record), as changes the phone applies — how a lead's
- * phone opens a job older than its window. A job the caller may not see (the rulebook's
- * `seesJob`) is not there for them (404).
+ * phone opens a job older than its window; the answer's JSON text, `{ changes }`. A job the
+ * caller may not see (the rulebook's `seesJob`) is not there for them (404).
  */
-export async function jobOnDemand(user: SessionUser, jobId: string): Promise<{ changes: Change[] }> {
+export async function jobOnDemand(user: SessionUser, jobId: string): Promise<Buffer> {
 	const job = await Job.findOne({ where: { id: jobId, workshopId: user.workshopId, deletedAt: { [SqlOp.is]: null } } });
 	if (!job || !seesJob({ role: user.role, userId: user.id }, { assigneeId: job.assigneeId })) throw new NotFoundError();
 	const scope: Scope = {
@@ -295,14 +311,14 @@ export async function jobOnDemand(user: SessionUser, jobId: string): Promise<{ c
 	};
 	const library = new Set<string>(LIBRARY);
 	const steps = snapshotSteps();
-	const changes: Change[] = [];
+	const changes: ChangeText[] = [];
 	let token: Token | null = { base: await lastSeq(user.workshopId), step: 0, after: '' };
 	while (token) {
 		while (token.step < steps.length && library.has(steps[token.step].entity)) token = { ...token, step: token.step + 1, after: '' };
 		if (token.step >= steps.length) break;
 		const page = await snapshotPage(scope, token, MAX_PULL_LIMIT_V2, (s) => !library.has(s.entity));
-		changes.push(...page.changes);
+		for (const c of page.changes) changes.push(c);
 		token = page.next ? decodeToken(page.next, token.base, steps.length) : null;
 	}
-	return { changes };
+	return pageJson(changes);
 }

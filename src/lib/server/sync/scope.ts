@@ -18,7 +18,8 @@ import type { SessionUser } from '../auth/types';
 import { db } from '../db';
 import { isLead } from '../../roles';
 
-export type FeedRow = { seq: number; entity: string; entityId: string; version: number; op: 'upsert' | 'delete' | 'evict'; jobId: string | null; audience: string | null; record: Record<string, unknown> | null };
+/** A row of the change feed, its record as the stored JSON text (the pull splices it in as it is). */
+export type FeedRow = { seq: number; entity: string; entityId: string; version: number; op: 'upsert' | 'delete' | 'evict'; jobId: string | null; audience: string | null; record: string | null };
 
 /** How many days a closed job stays on a phone: technicians' and apprentices', leads' and owners'. */
 export type Windows = { phoneDays: number; deskDays: number };
@@ -97,7 +98,7 @@ export const LIBRARY = ['component', 'sheet'] as const;
 /** Whether a feed row without a job reaches a technician or apprentice (library, their customers and vehicles). */
 export function visibleWithoutJob(row: FeedRow, scope: Scope): boolean {
 	if (row.entity === 'component') return true;
-	if (row.entity === 'sheet') return row.record?.state === 'approved';
+	if (row.entity === 'sheet') return !!row.record && (JSON.parse(row.record) as { state?: string }).state === 'approved';
 	if (row.entity === 'customer') return scope.customers.includes(row.entityId);
 	if (row.entity === 'vehicle') return scope.vehicles.includes(row.entityId);
 	return false;

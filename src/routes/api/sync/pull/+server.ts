@@ -1,4 +1,4 @@
-import { api } from '$lib/server/api';
+import { api, jsonText } from '$lib/server/api';
 import { ValidationError } from '$lib/server/errors';
 import { pullChanges, pullV2 } from '$lib/server/sync/pull';
 import { describeFirstIssue, parsePullQuery } from '$lib/sync/protocol';
@@ -9,11 +9,12 @@ import { describeFirstIssue, parsePullQuery } from '$lib/sync/protocol';
  * (`&snapshot=` continues one; see `server/sync/pull.ts`).
  */
 export const GET = api(async ({ url }, user) => {
+	const since = performance.now();
 	const q = parsePullQuery(url.searchParams);
 	if (!q.success) {
 		const { field, message } = describeFirstIssue(q.error);
 		throw new ValidationError({ [field]: message });
 	}
-	if (q.data.v === 2) return pullV2(user, q.data.cursor, q.data.limit, q.data.snapshot);
-	return pullChanges(user, q.data.cursor, q.data.limit);
+	if (q.data.v === 2) return jsonText(await pullV2(user, q.data.cursor, q.data.limit, q.data.snapshot), since);
+	return jsonText(await pullChanges(user, q.data.cursor, q.data.limit), since);
 });

@@ -1,4 +1,4 @@
-import { api } from '$lib/server/api';
+import { api, jsonText } from '$lib/server/api';
 import { NotFoundError } from '$lib/server/errors';
 import { jobOnDemand } from '$lib/server/sync/pull';
 import { uuidSchema } from '$lib/sync/protocol';
@@ -7,5 +7,5 @@ import { uuidSchema } from '$lib/sync/protocol';
 export const GET = api(async ({ params }, user) => {
 	const id = uuidSchema.safeParse(params.id);
 	if (!id.success) throw new NotFoundError();
-	return jobOnDemand(user, id.data);
+	return jsonText(await jobOnDemand(user, id.data));
 });
