@@ -16,8 +16,10 @@
  *     a little): a technician's first sync (`v=2`, cursor 0, pages of the phone's size), the
  *     lead's first sync, then 500 new readings pushed on one of the technician's open jobs
  *     and the incremental pull of both; per pull the round trips, the bytes of the answers,
- *     the changes and the time. Beside them the anchor: the raw indexed SELECT of the same
- *     readings the technician's first sync carried (`mariadb` driver, `job_id IN (…)`).
+ *     the changes and the time (the wall time of the requests until their last byte, and
+ *     the app's time in the handler from the answers' `Server-Timing`; the first syncs the
+ *     best of 3). Beside them the anchor: the raw indexed SELECT of the same readings the
+ *     technician's first sync carried (`mariadb` driver, `job_id IN (…)`, the best of 3).
  *  4. Goals (reported, never enforced): a technician's first sync under 1 s of server time
  *     within a handful of round trips; the pull at least half the rows per second of the raw
  *     SELECT; the lead's first sync bounded by the window, not the history.
