@@ -30,7 +30,9 @@
  * BENCH_PAGE (the phone's page, 2000). All data is invented.
  */
 import type { ChildProcess } from 'node:child_process';
+import http from 'node:http';
 import os from 'node:os';
+import zlib from 'node:zlib';
 import mariadb from 'mariadb';
 import { QueryTypes } from 'sequelize';
 import { v7 as uuidv7 } from 'uuid';
@@ -85,6 +87,37 @@ async function pull(c: Client, cursor: number): Promise<PullResult> {
 		if (!page.more) break;
 	}
 	return r;
+}
+
+/**
+ * The bytes a whole pull takes on the wire, asked as a browser asks (`accept-encoding: gzip,
+ * deflate, br`): node's own HTTP client, which leaves the answer as it came.
+ */
+async function wireBytes(c: Client, base: string): Promise<{ bytes: number; encoding: string }> {
+	const get = (path: string) =>
+		new Promise<{ body: Buffer; encoding: string }>((resolve, reject) => {
+			http
+				.get(base + path, { headers: c.headers({ accept: 'application/json', 'accept-encoding': 'gzip, deflate, br' }) }, (res) => {
+					const chunks: Buffer[] = [];
+					res.on('data', (d: Buffer) => chunks.push(d));
+					res.on('end', () => resolve({ body: Buffer.concat(chunks), encoding: String(res.headers['content-encoding'] ?? 'identity') }));
+				})
+				.on('error', reject);
+		});
+	let cursor = 0;
+	let snapshot: string | undefined;
+	let bytes = 0;
+	let encoding = 'identity';
+	for (;;) {
+		const r = await get(`/api/sync/pull?v=2&cursor=${cursor}&limit=${PAGE}${snapshot ? `&snapshot=${snapshot}` : ''}`);
+		bytes += r.body.length;
+		encoding = r.encoding;
+		const text = encoding === 'br' ? zlib.brotliDecompressSync(r.body) : encoding === 'gzip' ? zlib.gunzipSync(r.body) : r.body;
+		const page = JSON.parse(text.toString('utf8')) as { cursor: number; more: boolean; snapshot?: string };
+		cursor = page.cursor;
+		snapshot = page.snapshot;
+		if (!page.more) return { bytes, encoding };
+	}
 }
 
 async function main() {
@@ -240,6 +273,8 @@ async function main() {
 		};
 		const techFirst = await best(techClient);
 		const leadFirst = await best(lc);
+		const techWire = await wireBytes(techClient, served.url);
+		const leadWire = await wireBytes(lc, served.url);
 
 		// The anchor: the raw indexed SELECT of the readings the technician's first sync carried.
 		const [scoped] = (await pool.query(
@@ -275,6 +310,7 @@ async function main() {
 		console.log(`  innodb_flush_log_at_trx_commit=${settings.innodb_flush_log_at_trx_commit}, sync_binlog=${settings.sync_binlog} (binary log ${settings.log_bin}); page ${PAGE}`);
 		line('technician, first sync', techFirst);
 		line('lead, first sync', leadFirst);
+		console.log(`  on the wire (${techWire.encoding}): technician's first sync ${fmt(techWire.bytes / 1024)} KiB, the lead's ${fmt(leadWire.bytes / 1024)} KiB`);
 		line('technician, after 500 new readings', techNext);
 		line('lead, after 500 new readings', leadNext);
 		const rawRate = (rawRows / rawMs) * 1000;

@@ -5,9 +5,11 @@
  * rows whose columns take awkward values in turn — quotes, backslashes, line breaks, control
  * characters, letters outside ASCII, ±Infinity inside stored JSON, nulls, decimals, dates —
  * must give the same changes, read directly, through the pull (snapshot and feed) and through
- * a job fetched on demand. The rows are made from the tables' own column lists, so a column
+ * a job fetched on demand; compressed on the way when the phone takes it. The rows are made from the tables' own column lists, so a column
  * added later is covered too.
  */
+import http from 'node:http';
+import zlib from 'node:zlib';
 import { QueryTypes } from 'sequelize';
 import { v7 as uuidv7 } from 'uuid';
 import { beforeAll, describe, expect, inject, it } from 'vitest';
@@ -174,6 +176,31 @@ describe('the pull written as text', () => {
 		});
 		expect(change?.record).toEqual(JSON.parse(stored.record));
 		expect(change?.record?.complaint).toBe(AWKWARD);
+	});
+
+	it('sends a page compressed when the phone takes it (brotli, else gzip), the same JSON inside', async () => {
+		const path = `/api/sync/pull?v=2&cursor=${before}&limit=1000`;
+		const raw = (encoding: string) =>
+			new Promise<{ body: Buffer; encoding: string | undefined }>((resolve, reject) => {
+				http
+					.get(base + path, { headers: lead.headers({ accept: 'application/json', 'accept-encoding': encoding }) }, (res) => {
+						const chunks: Buffer[] = [];
+						res.on('data', (d: Buffer) => chunks.push(d));
+						res.on('end', () => resolve({ body: Buffer.concat(chunks), encoding: res.headers['content-encoding'] }));
+					})
+					.on('error', reject);
+			});
+		const plain = await raw('identity');
+		expect(plain.encoding).toBeUndefined();
+		const expected = JSON.parse(plain.body.toString('utf8'));
+		expect(expected.changes.length).toBeGreaterThan(20);
+		const br = await raw('gzip, deflate, br');
+		expect(br.encoding).toBe('br');
+		expect(br.body.length).toBeLessThan(plain.body.length / 3);
+		expect(JSON.parse(zlib.brotliDecompressSync(br.body).toString('utf8'))).toEqual(expected);
+		const gz = await raw('gzip');
+		expect(gz.encoding).toBe('gzip');
+		expect(JSON.parse(zlib.gunzipSync(gz.body).toString('utf8'))).toEqual(expected);
 	});
 
 	it('writes a page as one JSON object with the rest of the answer after the changes', () => {
