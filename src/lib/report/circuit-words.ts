@@ -140,6 +140,7 @@ export function circuitFigures(c: CircuitFacts): Figure[] {
 		label: LABEL[l.label] ?? l.label,
 		value: l.value ?? l.text,
 		spec: l.spec ?? '',
+		specLabel: 'Judged against',
 		result: RESULT[l.verdict] ?? RESULT.cant_tell
 	}));
 }

@@ -122,7 +122,12 @@ export type ReportFacts = {
 /** A finding's outcome in three words a customer reads: OK, out of spec, can't tell. */
 export type Outcome = 'ok' | 'out' | 'unclear';
 
-export type Figure = { label: string; value: string; spec: string; result: string };
+/**
+ * One figure of a finding. `specLabel` names what `spec` is: the maker's figure by default; a
+ * circuit test's limit may be the vehicle's sheet or common practice, so it says "Judged
+ * against". An empty `spec` is not printed.
+ */
+export type Figure = { label: string; value: string; spec: string; result: string; specLabel?: string };
 
 export type Finding = {
 	outcome: Outcome;
