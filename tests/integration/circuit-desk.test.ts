@@ -166,6 +166,6 @@ describe('the overview counts circuit tests', () => {
 		expect(page).toContain('data-testid="circuits-table"');
 		const relayRow = /<tr[^>]*data-kind="relay"[^]*?<\/tr>/.exec(page)?.[0] ?? '';
 		expect(relayRow).toContain('Relay test');
-		expect(relayRow.replace(/<!--[^]*?-->/g, '')).toMatch(/<span aria-hidden="true">⚑ <\/span>1<\/td>/);
+		expect(relayRow.replace(/<!--[^]*?-->/g, '')).toMatch(/<span aria-hidden="true" class="mr-1">⚑<\/span>1<\/td>/);
 	});
 });
