@@ -7,7 +7,7 @@
 import { getMeta, listByJob, setMeta, type LocalDb, type LocalRecord } from '../client/local-db';
 import type { Me } from '../client/session';
 import type { Role } from '../roles';
-import { buildJobTests, type JobTestsView, type SheetChecks } from '../tests/view';
+import { buildJobTests, signOffViewOf, type JobTestsView, type SheetChecks, type SignOffView } from '../tests/view';
 import { jobFactsOf, positionsText, signOffStates, type FactDecision, type FactReading, type FactTest } from '../tests/facts';
 import { circuitSignOffStates, closingCircuits, type FactCircuit } from '../tests/circuit-signoff';
 import { KINDS, type CircuitKind } from '../flow/circuit';
@@ -188,17 +188,41 @@ export async function signOffSummary(db: LocalDb, jobIds: string[], me: Me): Pro
 }
 
 /** A circuit test (battery, draw, drop, charging, relay, sensor) as the job page lists it. */
-export type CircuitTestItem = { id: string; kind: string; verdict: string; summary: string; pending: boolean; at: string };
+export type CircuitTestItem = {
+	id: string;
+	kind: string;
+	verdict: string;
+	summary: string;
+	pending: boolean;
+	at: string;
+	/** An apprentice's waits for a lead's sign-off (when `me` is given). */
+	signOff?: SignOffView;
+};
 
-/** The job's circuit tests on this phone, newest first: the server's result once it has one. */
-export async function readCircuitTests(db: LocalDb, jobId: string): Promise<CircuitTestItem[]> {
+/**
+ * The job's circuit tests on this phone, newest first: the server's result once it has one,
+ * and with `me`, where an apprentice's stands with its sign-off (one sent back and done again
+ * since says nothing more).
+ */
+export async function readCircuitTests(db: LocalDb, jobId: string, me?: Me): Promise<CircuitTestItem[]> {
 	const under = await listByJob(db, jobId);
+	let views = new Map<string, SignOffView>();
+	if (me) {
+		const { circuits, decisions } = await factRecords(db, jobId, me);
+		const people = new Map(((await getMeta<Person[]>(db, PEOPLE)) ?? []).map((p) => [p.id, { name: p.name, role: p.role }]));
+		if (!people.has(me.id)) people.set(me.id, { name: me.name, role: me.role });
+		views = new Map(
+			[...circuitSignOffStates(circuits, decisions)]
+				.filter(([, c]) => !c.replaced)
+				.map(([id, c]) => [id, signOffViewOf(c.state, people)])
+		);
+	}
 	return under
 		.filter((r) => r.entity === 'circuit_test')
 		.map((r) => {
 			const d = r.data as Record<string, unknown>;
 			const res = (d.serverResult ?? d.deviceResult ?? {}) as { verdict?: string; summary?: string };
-			return { id: r.id, kind: String(d.kind), verdict: res.verdict ?? 'cant_tell', summary: res.summary ?? '', pending: r.pending > 0, at: String(d.createdAt ?? r.updatedAt) };
+			return { id: r.id, kind: String(d.kind), verdict: res.verdict ?? 'cant_tell', summary: res.summary ?? '', pending: r.pending > 0, at: String(d.createdAt ?? r.updatedAt), signOff: views.get(r.id) };
 		})
 		.sort((a, b) => b.at.localeCompare(a.at));
 }
