@@ -90,8 +90,16 @@ export type ClosingTest = {
 	readings: number;
 	outOfSpec: number;
 };
-/** What a job's status rules read: its live tests (oldest first) and its open clashes. */
-export type JobFacts = { tests: ClosingTest[]; openClashes: number };
+/**
+ * What a job's status rules read: its live tests (oldest first), its open clashes and its
+ * circuit tests (battery, charging, …) with their sign-off (`tests/circuit-signoff.ts`; a
+ * phone that does not hold them leaves them out and the server checks again).
+ */
+export type JobFacts = {
+	tests: ClosingTest[];
+	openClashes: number;
+	circuits?: { id: string; signOff: SignOffKind; replaced: boolean }[];
+};
 
 const partOf = (t: ClosingTest) =>
 	`${t.partNumber ?? 'the part'}${t.positions.length ? ` (${t.positions.length > 1 ? 'cylinders' : 'cylinder'} ${t.positions.join(', ')})` : ''}`;
@@ -118,7 +126,9 @@ export function refuseRetestedOk(f: JobFacts): string | null {
  * apprentice did signed off. What is missing is said in one sentence.
  */
 export function refuseClose(f: JobFacts): string | null {
-	const unsigned = f.tests.filter((t) => !isSignedOff(t.signOff)).length;
+	const unsigned =
+		f.tests.filter((t) => !isSignedOff(t.signOff)).length +
+		(f.circuits ?? []).filter((c) => !c.replaced && !isSignedOff(c.signOff)).length;
 	const missing: string[] = [];
 	const n = (k: number, one: string, many: string) => (k === 1 ? `one ${one}` : `${k} ${many}`);
 	if (f.openClashes)

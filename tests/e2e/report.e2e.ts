@@ -154,4 +154,27 @@ describe('the customer report from the desk', () => {
 		await page.screenshot({ path: path.resolve('screenshots', 'report-page-phone-full.png'), fullPage: true });
 		expect(errors).toEqual([]);
 	});
+
+	it('previews the no-start job’s battery and draw tests in the customer’s words, with their limits', async () => {
+		await page.setViewportSize(DESK);
+		// The demo's job 1004: a battery at 39 % (charge and re-test) and a 240 mA draw against 50 mA.
+		const preview = `${base}/jobs/019a0000-0000-7000-8000-000000000304/report`;
+		await page.goto(preview);
+		if (page.url().includes('/sign-in')) {
+			// The report pages opened as the customer may have left this browser signed out.
+			await page.getByLabel('E-mail', { exact: true }).fill('lead@tallowbridge.example');
+			await page.getByLabel('Password').fill(DEMO_PASSWORD);
+			await page.getByRole('button', { name: 'Sign in' }).click();
+			await page.waitForURL(preview);
+		}
+		const report = page.getByTestId('report');
+		await report.waitFor();
+		const text = (await report.textContent())?.replace(/\s+/g, ' ') ?? '';
+		expect(text, `${page.url()}: ${text.slice(0, 1500)}`).toContain('Battery drain with the vehicle switched off');
+		expect(text).toContain('Current drawn with everything off: 240 mA. Judged against: at most 50 mA. Result: over spec.');
+		expect(text).toContain('The battery was too flat to judge its condition');
+		expect(await axeViolations(page)).toEqual([]);
+		await atPhoneSize(page, 'report-preview-circuits');
+		expect(errors).toEqual([]);
+	});
 });

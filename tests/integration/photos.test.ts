@@ -22,7 +22,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { customerPhotos, purgeRemovedPhotos } from '../../src/lib/server/photos/service';
 import { renderReportPdf } from '../../src/lib/server/reports/pdf';
-import { previewReport } from '../../src/lib/server/reports/service';
+import { digestOf, previewReport } from '../../src/lib/server/reports/service';
 import { getObject, headObject } from '../../src/lib/server/photos/storage';
 import { jobs } from '../../src/lib/server/services/jobs';
 import { makeWorkshop } from '../helpers/fixtures';
@@ -308,5 +308,47 @@ describe('marks and cleanup', () => {
 		const e = await expectError(await as.apprentice.json('POST', `/api/photos/${id}/marks`, { mark: 'removed' }), 403, 'forbidden');
 		expect(e.message).toMatch(/took the photo or a workshop lead/);
 		await jobs.update(w.users.lead.actor, jobId, job.version + 1, { assigneeId: w.users.technician.id });
+	});
+});
+
+describe('photos in the customer’s PDF', () => {
+	/** pdfimages' listing of a PDF (poppler, not project code): each image's width and height. */
+	function imagesOf(pdf: Buffer): { width: number; height: number }[] {
+		const dir = mkdtempSync(path.join(tmpdir(), 'fieldbench-print-'));
+		try {
+			const file = path.join(dir, 'report.pdf');
+			writeFileSync(file, pdf);
+			return execFileSync('pdfimages', ['-list', file], { encoding: 'utf8' })
+				.trim()
+				.split('\n')
+				.slice(2)
+				.map((l) => l.trim().split(/\s+/))
+				.map((c) => ({ width: Number(c[3]), height: Number(c[4]) }));
+		} finally {
+			rmSync(dir, { recursive: true, force: true });
+		}
+	}
+
+	it('are printed from the original at most 1200 px on the long side (never enlarged), not as the 320 px thumbnail', async () => {
+		const job = (await jobs.create(w.users.lead.actor, { complaint: 'Earth strap corroded', assigneeId: w.users.technician.id })).id as string;
+		const [big, small] = [await jpeg(2400, 1600, 90), await jpeg(400, 300, 160)];
+		const [idBig, idSmall] = [uuidv7(), uuidv7()];
+		expect((await upload(as.technician, idBig, big, { jobId: job, sha256: sha(big), caption: 'Earth strap' })).status).toBe(201);
+		expect((await upload(as.technician, idSmall, small, { jobId: job, sha256: sha(small), caption: 'Battery post' })).status).toBe(201);
+		for (const id of [idBig, idSmall])
+			expect((await as.lead.json('POST', `/api/photos/${id}/marks`, { mark: 'for_customer' })).status).toBe(201);
+
+		// Sent as a link by the lead from the report page, then opened as the customer would.
+		const { doc } = await previewReport(w.users.lead.actor, job);
+		const sent = await as.lead.form(`/jobs/${job}/report?/send`, { sendKey: uuidv7(), digest: digestOf(doc), channel: 'link', paper: 'a4' });
+		const link = /http:\/\/[^\s<"]+\/r\/[A-Za-z0-9_-]{43}/.exec(await sent.text())?.[0];
+		expect(link, 'the report link').toBeTruthy();
+		const pdf = Buffer.from(await (await fetch(`${link}/pdf`)).arrayBuffer());
+		// 2400 × 1600 fitted inside 1200 × 1200 is 1200 × 800; 400 × 300 stays as it is.
+		expect(imagesOf(pdf).map((i) => `${i.width}x${i.height}`).sort()).toEqual(['1200x800', '400x300']);
+		const letter = Buffer.from(await (await fetch(`${link}/pdf?paper=letter`)).arrayBuffer());
+		expect(imagesOf(letter).map((i) => `${i.width}x${i.height}`).sort()).toEqual(['1200x800', '400x300']);
+		// Bounded: two photos at print size keep the report well under 1 MB.
+		expect(pdf.length).toBeLessThan(1_000_000);
 	});
 });

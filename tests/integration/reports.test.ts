@@ -334,6 +334,68 @@ describe('apprentice work', () => {
 	});
 });
 
+describe('circuit tests in the report', () => {
+	/*
+	 * The figures are those of the judge's sourced unit tests (tests/unit/flow/circuit.test.ts):
+	 * 12.24 V at 80 °F is 50 % charged (Battery Council International's table), too flat to
+	 * judge; a 120 mA draw against the common-practice 50 mA on 70 Ah, half usable, is flat in
+	 * 70 × 0.5 ÷ 0.12 ÷ 24 = 12.2 days (arithmetic).
+	 */
+	const BATTERY = { batteryType: 'flooded', standard: 'sae_j537', ratedA: 600, tempC: (80 - 32) * (5 / 9), surfaceGone: true, restV: 12.24, method: 'conductance', measuredA: 250, minCapability: 75 };
+	const DRAW = { capacityAh: 70, usablePct: 50, drawMa: 120, limitMa: 50, waitMin: 45, waitStartedAt: '2026-12-02T08:00:00.000Z' };
+	const drainSentence = 'With the vehicle switched off and asleep, something keeps drawing too much current from the battery: the cause needs tracing. A charged battery would be too flat to start the engine after about 12.2 days.';
+	const drawFigure = 'Current drawn with everything off: 120 mA. Judged against: at most 50 mA. Result: over spec.';
+
+	it('go out by e-mail with their outcome, sentence, figures and limits, in the text, the PDF and the page', async () => {
+		const l = ws.users.lead.actor;
+		const job = await jobs.create(l, { complaint: 'Flat battery after a weekend parked', customerId: consenting, vehicleId, assigneeId: ws.users.technician.id });
+		const ops = [create('circuit_test', { jobId: job.id, kind: 'battery', inputs: BATTERY }), create('circuit_test', { jobId: job.id, kind: 'parasitic', inputs: DRAW })];
+		expect((await push(tech, 'phone-circuits', ops)).map((x) => x.status)).toEqual(['applied', 'applied']);
+
+		const { status, preview } = await send(lead, job.id as string);
+		expect(status).toBe(200);
+		expect(preview.doc.findings.map((f) => [f.title, f.outcomeText])).toEqual([
+			['Battery', 'Can’t tell'],
+			['Battery drain with the vehicle switched off', 'Out of spec']
+		]);
+		const [row] = await reportRows(job.id as string);
+		await until('the message to be sent', async () => (await reportRows(job.id as string)).find((r) => r.state === 'sent'));
+		const [message] = await caught(messageIdOf(`report-${row.id}`));
+		expect(message.text).toContain(`- Battery drain with the vehicle switched off: ${drainSentence}`);
+		expect(message.text).toContain('- Battery: The battery was too flat to judge its condition: it needs a full charge and then testing again.');
+		const text = pdfText(message.attachments[0].content);
+		expect(text).toContain(drainSentence);
+		expect(text).toContain(drawFigure);
+		expect(text).toContain('State of charge: 50 %. Judged against: at least 75 % to judge the battery. Result: can’t tell — too flat to judge.');
+		expect(text).toContain('Checked: current drawn with everything off');
+
+		const link = /http:\/\/\S+\/r\/[A-Za-z0-9_-]{43}/.exec(message.text ?? '')![0];
+		const page = (await (await fetch(link)).text()).replace(/\s+/g, ' ');
+		expect(page).toContain(drainSentence);
+		expect(page).toContain('Judged against: at most 50 mA. Result: over spec.');
+	});
+
+	it('leave an apprentice’s circuit test out until a lead signs it off', async () => {
+		const l = ws.users.lead.actor;
+		const job = await jobs.create(l, { complaint: 'Battery light on', customerId: consenting, vehicleId, assigneeId: ws.users.apprentice.id });
+		const apprentice = await signedIn(ws, 'apprentice');
+		const draw = create('circuit_test', { jobId: job.id, kind: 'parasitic', inputs: DRAW });
+		expect((await push(apprentice, 'phone-apprentice-c', [draw]))[0].status).toBe('applied');
+
+		const before = await previewReport(l, job.id as string);
+		expect(before.awaitingSignOff).toBe(1);
+		expect(before.doc.findings).toEqual([]);
+		const page = (await (await lead.get(`/jobs/${job.id}/report`, 'text/html')).text()).replace(/\s+/g, ' ');
+		expect(page).toContain('One test logged by an apprentice is left out until a lead signs it off.');
+
+		const r = await lead.json('POST', `/api/tests/${draw.entityId}/signoff`, {});
+		expect(r.status, await r.clone().text()).toBe(201);
+		const after = await previewReport(l, job.id as string);
+		expect(after.awaitingSignOff).toBe(0);
+		expect(after.doc.findings.map((f) => f.sentence)).toEqual([drainSentence]);
+	});
+});
+
 describe('the outbox with several senders', () => {
 	it('sends each message exactly once while five workers claim at the same time', async () => {
 		const keys = Array.from({ length: 12 }, () => `test-${uuidv7()}`);

@@ -114,6 +114,22 @@ async function apprenticeTest(o: { status?: string } = {}) {
 	const j = await job(a.users.apprentice.id, o);
 	return { job: j, test: await testOn(a.users.apprentice.actor, j.id, { state: 'done' }), id: uuidv7() };
 }
+/**
+ * A battery test saved by `who`'s phone on a job of theirs (12.24 V at 80 °F: 50 % charged,
+ * Battery Council International's table, so "charge and re-test"): an apprentice's waits for
+ * a lead's sign-off like a coil test.
+ */
+async function circuitTestBy(who: 'apprentice' | 'technician', o: { status?: string } = {}) {
+	const j = await job(a.users[who].id, o);
+	const c = create('circuit_test', {
+		jobId: j.id,
+		kind: 'battery',
+		inputs: { batteryType: 'flooded', standard: 'sae_j537', ratedA: 600, tempC: (80 - 32) * (5 / 9), surfaceGone: true, restV: 12.24 }
+	});
+	const r = await client[who].json('POST', '/api/sync/push', { deviceId: `rb-circuit-${who}`, ops: [c] });
+	expect((await r.json()).results[0].status).toBe('applied');
+	return { job: j, test: { id: c.entityId }, id: uuidv7() } as T;
+}
 /** A reading of the primary winding by the lead's phone: 0.60 Ω less 0.10 Ω leads = 0.50 Ω, OK at 20 °C. */
 async function okReading(testId: string) {
 	const r = await client.lead.json('POST', '/api/sync/push', {
@@ -502,6 +518,32 @@ const ACTIONS: Action[] = [
 		...signOffOf(),
 		// The owner's sign-off of the set-up stays the only one.
 		landed: async (t) => (await count('SELECT COUNT(*) AS n FROM signoffs WHERE test_id = ?', t.test.id)) > 1
+	},
+
+	// ——— Sign-offs of an apprentice's circuit tests (battery, charging, …): the same rules ———
+	{ name: 'sign off an apprentice’s battery test', allowed: LEADS, setup: () => circuitTestBy('apprentice'), ...signOffOf() },
+	{
+		name: 'send an apprentice’s battery test back with a note',
+		allowed: LEADS,
+		setup: () => circuitTestBy('apprentice'),
+		...signOffOf({ decision: 'sent_back', note: 'Rest the battery six hours, then read it again' })
+	},
+	{ name: 'sign off a technician’s battery test (only an apprentice’s needs one)', allowed: [], setup: () => circuitTestBy('technician'), ...signOffOf() },
+	{
+		name: 'close a job while an apprentice’s battery test waits for sign-off',
+		allowed: [],
+		setup: () => circuitTestBy('apprentice', { status: 'repaired' }),
+		...statusMove('closed')
+	},
+	{
+		name: 'close a job once its apprentice’s battery test is signed off',
+		allowed: LEADS,
+		setup: async () => {
+			const t = await circuitTestBy('apprentice', { status: 'repaired' });
+			expect((await client.lead.json('POST', `/api/tests/${t.test.id}/signoff`, {})).status).toBe(201);
+			return t;
+		},
+		...statusMove('closed')
 	},
 
 	// ——— What the work must show before a job is re-tested OK or closed ———

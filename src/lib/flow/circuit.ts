@@ -311,7 +311,12 @@ export const circuitInputs = z.record(
 	])
 );
 
-export type CircuitLine = { label: string; verdict: CircuitVerdict; text: string };
+/**
+ * One thing judged: `text` as the technician reads it; `value` (what was measured) and `spec`
+ * (what it was judged against) apart, for the customer's report. Results stored before
+ * `value` and `spec` existed carry `text` only.
+ */
+export type CircuitLine = { label: string; verdict: CircuitVerdict; text: string; value?: string; spec?: string };
 export type CircuitResult = {
 	verdict: CircuitVerdict;
 	/** The one sentence that says what it means. */
@@ -377,7 +382,9 @@ function judgeBattery(i: CircuitInputs): CircuitResult {
 	lines.push({
 		label: 'State of charge',
 		verdict: judgeable ? 'ok' : 'charge_retest',
-		text: `${soc.atMost ? 'at most ' : ''}${pct(soc.fraction)}`
+		text: `${soc.atMost ? 'at most ' : ''}${pct(soc.fraction)}`,
+		value: `${soc.atMost ? 'at most ' : ''}${pct(soc.fraction)}`,
+		spec: `at least ${pct(MIN_SOC_TO_JUDGE)} to judge the battery`
 	});
 	if (!judgeable) {
 		working.push(`Under ${pct(MIN_SOC_TO_JUDGE)}: a load or conductance result would say nothing about the battery’s health (common practice).`);
@@ -396,7 +403,7 @@ function judgeBattery(i: CircuitInputs): CircuitResult {
 			const min = loadTestMinimum(tempC);
 			const v = loadV >= min ? 'ok' : 'low';
 			working.push(`Load test at half the rating${rated ? ` (${fmt(rated / 2, 0)} A)` : ''} for 15 s: at least ${fmt(min)} V at ${fmt(tempC, 0)} °C (common practice, vehicle makers’ service information)`);
-			lines.push({ label: 'Under load', verdict: v, text: `${fmt(loadV)} V, at least ${fmt(min)} V` });
+			lines.push({ label: 'Under load', verdict: v, text: `${fmt(loadV)} V, at least ${fmt(min)} V`, value: `${fmt(loadV)} V`, spec: `at least ${fmt(min)} V` });
 		}
 	} else {
 		const measured = num(i, 'measuredA');
@@ -404,14 +411,20 @@ function judgeBattery(i: CircuitInputs): CircuitResult {
 		if (measured != null && rated) {
 			const share = crankingCapability(measured, rated);
 			working.push(`${fmt(measured, 0)} A ÷ ${fmt(rated, 0)} A (${standard}) = ${pct(share)} of the rating; at least ${pct(minShare)} (${CONDUCTANCE_SOURCE})`);
-			lines.push({ label: 'Cranking capability', verdict: share >= minShare ? 'ok' : 'low', text: `${fmt(measured, 0)} A of ${fmt(rated, 0)} A ${standard} (${pct(share)})` });
+			lines.push({
+				label: 'Cranking capability',
+				verdict: share >= minShare ? 'ok' : 'low',
+				text: `${fmt(measured, 0)} A of ${fmt(rated, 0)} A ${standard} (${pct(share)})`,
+				value: `${fmt(measured, 0)} A (${pct(share)} of ${fmt(rated, 0)} A ${standard})`,
+				spec: `at least ${pct(minShare)} of ${fmt(rated, 0)} A`
+			});
 		}
 	}
 	const crankV = num(i, 'crankV');
 	if (crankV != null) {
 		const min = loadTestMinimum(tempC);
 		working.push(`Cranking: at least ${fmt(min)} V at ${fmt(tempC, 0)} °C (the load-test table, common practice)`);
-		lines.push({ label: 'Cranking voltage', verdict: crankV >= min ? 'ok' : 'low', text: `${fmt(crankV)} V, at least ${fmt(min)} V` });
+		lines.push({ label: 'Cranking voltage', verdict: crankV >= min ? 'ok' : 'low', text: `${fmt(crankV)} V, at least ${fmt(min)} V`, value: `${fmt(crankV)} V`, spec: `at least ${fmt(min)} V` });
 	}
 	if (lines.length === 1) return { verdict: 'cant_tell', summary: 'Can’t tell — add a load or conductance result.', lines, working };
 	const verdict = worst(lines);
@@ -430,7 +443,7 @@ function judgeParasitic(i: CircuitInputs): CircuitResult {
 	const ranked = [...fuses].sort((a, b) => b.mv - a.mv);
 	if (drawMa == null) return { verdict: 'cant_tell', summary: 'Can’t tell — read the current once the modules sleep.', lines, working, ranked };
 	const v = drawMa > limitMa ? 'high' : 'ok';
-	lines.push({ label: 'Draw', verdict: v, text: `${fmt(drawMa, 0)} mA, at most ${fmt(limitMa, 0)} mA` });
+	lines.push({ label: 'Draw', verdict: v, text: `${fmt(drawMa, 0)} mA, at most ${fmt(limitMa, 0)} mA`, value: `${fmt(drawMa, 0)} mA`, spec: `at most ${fmt(limitMa, 0)} mA` });
 	let days: number | undefined;
 	if (capacity != null && drawMa > 0) {
 		days = daysToFlat(capacity, drawMa / 1000, usable);
@@ -458,8 +471,8 @@ function judgeDrop(i: CircuitInputs): CircuitResult {
 	const current = num(i, 'currentA');
 	const circuit = CIRCUIT_WORDS[str(i, 'circuit') ?? 'other'] ?? 'circuit';
 	if (feed == null || earth == null) return { verdict: 'cant_tell', summary: 'Can’t tell — read both sides while the circuit carries its current.', lines, working };
-	lines.push({ label: 'Feed side', verdict: band(feed, null, limit), text: `${fmt(feed)} V, at most ${fmt(limit)} V` });
-	lines.push({ label: 'Earth side', verdict: band(earth, null, limit), text: `${fmt(earth)} V, at most ${fmt(limit)} V` });
+	lines.push({ label: 'Feed side', verdict: band(feed, null, limit), text: `${fmt(feed)} V, at most ${fmt(limit)} V`, value: `${fmt(feed)} V`, spec: `at most ${fmt(limit)} V` });
+	lines.push({ label: 'Earth side', verdict: band(earth, null, limit), text: `${fmt(earth)} V, at most ${fmt(limit)} V`, value: `${fmt(earth)} V`, spec: `at most ${fmt(limit)} V` });
 	if (current != null && current > 0) {
 		working.push(`Feed: ${fmt(feed)} V ÷ ${fmt(current, 0)} A = ${fmt(dropResistance(feed, current) * 1000, 1)} mΩ (Ohm’s law)`);
 		working.push(`Earth: ${fmt(earth)} V ÷ ${fmt(current, 0)} A = ${fmt(dropResistance(earth, current) * 1000, 1)} mΩ`);
@@ -484,10 +497,10 @@ function judgeCharging(i: CircuitInputs): CircuitResult {
 	const rippleMax = num(i, 'rippleMaxV') ?? 0.5;
 	for (const [k, label] of [['offV', 'Idle, loads off'], ['onV', 'Idle, loads on']] as const) {
 		const v = num(i, k);
-		if (v != null) lines.push({ label, verdict: band(v, min, max), text: `${fmt(v)} V, ${fmt(min)}–${fmt(max)} V` });
+		if (v != null) lines.push({ label, verdict: band(v, min, max), text: `${fmt(v)} V, ${fmt(min)}–${fmt(max)} V`, value: `${fmt(v)} V`, spec: `${fmt(min)}–${fmt(max)} V` });
 	}
 	const ripple = num(i, 'rippleV');
-	if (ripple != null) lines.push({ label: 'AC ripple', verdict: band(ripple, null, rippleMax), text: `${fmt(ripple)} V AC, at most ${fmt(rippleMax)} V` });
+	if (ripple != null) lines.push({ label: 'AC ripple', verdict: band(ripple, null, rippleMax), text: `${fmt(ripple)} V AC, at most ${fmt(rippleMax)} V`, value: `${fmt(ripple)} V AC`, spec: `at most ${fmt(rippleMax)} V AC` });
 	if (lines.length < 3) return { verdict: 'cant_tell', summary: 'Can’t tell — read the voltage with loads off and on, and the ripple.', lines, working };
 	const off = num(i, 'offV')!;
 	const on = num(i, 'onV')!;
@@ -512,13 +525,13 @@ function judgeRelay(i: CircuitInputs): CircuitResult {
 	if (coil != null) {
 		const min = num(i, 'coilMin') ?? 76.5;
 		const max = num(i, 'coilMax') ?? 93.5;
-		lines.push({ label: 'Coil', verdict: band(coil, min, max), text: `${fmt(coil, 1)} Ω, ${fmt(min, 1)}–${fmt(max, 1)} Ω` });
+		lines.push({ label: 'Coil', verdict: band(coil, min, max), text: `${fmt(coil, 1)} Ω, ${fmt(min, 1)}–${fmt(max, 1)} Ω`, value: `${fmt(coil, 1)} Ω`, spec: `${fmt(min, 1)}–${fmt(max, 1)} Ω` });
 	}
-	if (str(i, 'clicks')) lines.push({ label: 'Clicks', verdict: i.clicks === 'yes' ? 'ok' : 'not_ok', text: i.clicks === 'yes' ? 'Yes' : 'No click' });
+	if (str(i, 'clicks')) lines.push({ label: 'Clicks', verdict: i.clicks === 'yes' ? 'ok' : 'not_ok', text: i.clicks === 'yes' ? 'Yes' : 'No click', value: i.clicks === 'yes' ? 'clicks' : 'no click', spec: 'clicks when powered' });
 	const contact = num(i, 'contactV');
 	if (contact != null) {
 		const max = num(i, 'contactMaxV') ?? 0.2;
-		lines.push({ label: 'Contacts', verdict: band(contact, null, max), text: `${fmt(contact, 3)} V, at most ${fmt(max, 3)} V` });
+		lines.push({ label: 'Contacts', verdict: band(contact, null, max), text: `${fmt(contact, 3)} V, at most ${fmt(max, 3)} V`, value: `${fmt(contact, 3)} V`, spec: `at most ${fmt(max, 3)} V` });
 	}
 	if (lines.length < 3) return { verdict: 'cant_tell', summary: 'Can’t tell — measure the coil, listen for the click and read the contacts under load.', lines, working };
 	const verdict = worst(lines);
@@ -532,15 +545,15 @@ function judgeSensor(i: CircuitInputs): CircuitResult {
 		const supply = num(i, 'supplyV');
 		const nominal = str(i, 'supplyNominal') === '12' ? 12 : 5;
 		// A 5 V reference within ±0.5 V, a battery feed from 11 V up (common practice).
-		if (supply != null) lines.push({ label: 'Supply', verdict: nominal === 5 ? band(supply, 4.5, 5.5) : band(supply, 11, null), text: `${fmt(supply)} V, should be ${nominal === 5 ? '4.50–5.50 V' : 'at least 11.00 V'} (common practice)` });
+		if (supply != null) lines.push({ label: 'Supply', verdict: nominal === 5 ? band(supply, 4.5, 5.5) : band(supply, 11, null), text: `${fmt(supply)} V, should be ${nominal === 5 ? '4.50–5.50 V' : 'at least 11.00 V'} (common practice)`, value: `${fmt(supply)} V`, spec: nominal === 5 ? '4.50–5.50 V' : 'at least 11.00 V' });
 		const earth = num(i, 'earthV');
-		if (earth != null) lines.push({ label: 'Earth', verdict: band(earth, null, 0.1), text: `${fmt(earth)} V drop, at most 0.10 V (common practice, per connection)` });
+		if (earth != null) lines.push({ label: 'Earth', verdict: band(earth, null, 0.1), text: `${fmt(earth)} V drop, at most 0.10 V (common practice, per connection)`, value: `${fmt(earth)} V`, spec: 'at most 0.10 V' });
 		const low = num(i, 'lowV');
 		const high = num(i, 'highV');
 		if (low != null && high != null) {
 			const highMin = nominal === 5 ? 3.8 : supply != null ? supply * 0.8 : 9.6;
 			const ok = low < 2.0 && high > highMin;
-			lines.push({ label: 'Signal switching', verdict: ok ? 'ok' : 'not_ok', text: `low ${fmt(low)} V, high ${fmt(high)} V (low under 2.00 V, high over ${fmt(highMin)} V)` });
+			lines.push({ label: 'Signal switching', verdict: ok ? 'ok' : 'not_ok', text: `low ${fmt(low)} V, high ${fmt(high)} V (low under 2.00 V, high over ${fmt(highMin)} V)`, value: `low ${fmt(low)} V, high ${fmt(high)} V`, spec: `low under 2.00 V, high over ${fmt(highMin)} V` });
 			working.push(HALL_SOURCE);
 		}
 		if (lines.length < 3) return { verdict: 'cant_tell', summary: 'Can’t tell — read the supply, the earth and the signal.', lines, working };
@@ -548,10 +561,10 @@ function judgeSensor(i: CircuitInputs): CircuitResult {
 		const ohms = num(i, 'ohms');
 		const ohmMin = num(i, 'ohmMin');
 		const ohmMax = num(i, 'ohmMax');
-		if (ohms != null && (ohmMin != null || ohmMax != null)) lines.push({ label: 'Winding', verdict: band(ohms, ohmMin, ohmMax), text: `${fmt(ohms, 0)} Ω, ${ohmMin != null ? fmt(ohmMin, 0) : '…'}–${ohmMax != null ? fmt(ohmMax, 0) : '…'} Ω (the sheet)` });
+		if (ohms != null && (ohmMin != null || ohmMax != null)) lines.push({ label: 'Winding', verdict: band(ohms, ohmMin, ohmMax), text: `${fmt(ohms, 0)} Ω, ${ohmMin != null ? fmt(ohmMin, 0) : '…'}–${ohmMax != null ? fmt(ohmMax, 0) : '…'} Ω (the sheet)`, value: `${fmt(ohms, 0)} Ω`, spec: ohmMin != null && ohmMax != null ? `${fmt(ohmMin, 0)}–${fmt(ohmMax, 0)} Ω` : ohmMin != null ? `at least ${fmt(ohmMin, 0)} Ω` : `at most ${fmt(ohmMax!, 0)} Ω` });
 		const ac = num(i, 'acV');
 		const acMin = num(i, 'acMinV');
-		if (ac != null && acMin != null) lines.push({ label: 'AC output cranking', verdict: band(ac, acMin, null), text: `${fmt(ac)} V AC, at least ${fmt(acMin)} V (the sheet)` });
+		if (ac != null && acMin != null) lines.push({ label: 'AC output cranking', verdict: band(ac, acMin, null), text: `${fmt(ac)} V AC, at least ${fmt(acMin)} V (the sheet)`, value: `${fmt(ac)} V AC`, spec: `at least ${fmt(acMin)} V AC` });
 		if (lines.length < 2) return { verdict: 'cant_tell', summary: 'Can’t tell — the resistance and the AC output both need the sheet’s figures.', lines, working };
 	}
 	const verdict = worst(lines);

@@ -7,8 +7,10 @@
 import { getMeta, listByJob, setMeta, type LocalDb, type LocalRecord } from '../client/local-db';
 import type { Me } from '../client/session';
 import type { Role } from '../roles';
-import { buildJobTests, type JobTestsView, type SheetChecks } from '../tests/view';
+import { buildJobTests, signOffViewOf, type JobTestsView, type SheetChecks, type SignOffView } from '../tests/view';
 import { jobFactsOf, positionsText, signOffStates, type FactDecision, type FactReading, type FactTest } from '../tests/facts';
+import { circuitSignOffStates, closingCircuits, type FactCircuit } from '../tests/circuit-signoff';
+import { KINDS, type CircuitKind } from '../flow/circuit';
 import type { JobFacts } from '../rules';
 import { listIssues } from '../client/issues';
 import { readSheet } from './library';
@@ -47,6 +49,8 @@ function plain(r: LocalRecord, me: Me, owner: string): Record<string, unknown> {
 	// The server marks an apprentice's test for sign-off; until it says so, this phone does.
 	if (r.entity === 'test' && d.needsSignOff == null)
 		d.needsSignOff = d.technicianId === me.id && me.role === 'apprentice';
+	if (r.entity === 'circuit_test' && d.needsSignOff == null)
+		d.needsSignOff = d.createdBy === me.id && me.role === 'apprentice';
 	const arrived = Date.parse(String(r.data.createdAt ?? ''));
 	d.order = r.version === 0 || Number.isNaN(arrived) ? NOT_SENT + Date.parse(r.updatedAt) : arrived;
 	return d;
@@ -123,7 +127,17 @@ async function factRecords(db: LocalDb, jobId: string, me: Me) {
 			order: Number(d.order)
 		})
 	);
-	return { tests, readings, decisions };
+	const circuits = of('circuit_test')
+		.sort((a, b) => Number(a.order) - Number(b.order))
+		.map(
+			(c): FactCircuit => ({
+				id: String(c.id),
+				kind: String(c.kind),
+				needsSignOff: Boolean(c.needsSignOff),
+				order: Number(c.order)
+			})
+		);
+	return { tests, readings, decisions, circuits };
 }
 
 /**
@@ -132,10 +146,10 @@ async function factRecords(db: LocalDb, jobId: string, me: Me) {
  * The workshop checks again with everything it holds.
  */
 export async function readJobFacts(db: LocalDb, jobId: string, me: Me): Promise<JobFacts> {
-	const { tests, readings, decisions } = await factRecords(db, jobId, me);
+	const { tests, readings, decisions, circuits } = await factRecords(db, jobId, me);
 	const ids = new Set([jobId, ...tests.map((t) => t.id)]);
 	const clashes = (await listIssues(db)).filter((i) => i.kind === 'conflict' && ids.has(i.op.entityId)).length;
-	return jobFactsOf(tests, readings, decisions, clashes);
+	return { ...jobFactsOf(tests, readings, decisions, clashes), circuits: closingCircuits(circuits, decisions) };
 }
 
 /** One apprentice test on the job list: its part and positions, and a send-back's note. */
@@ -149,7 +163,7 @@ export type JobSignOffs = { waiting: SignOffLine[]; sentBack: SignOffLine[]; sig
 export async function signOffSummary(db: LocalDb, jobIds: string[], me: Me): Promise<Map<string, JobSignOffs>> {
 	const out = new Map<string, JobSignOffs>();
 	for (const jobId of jobIds) {
-		const { tests, readings, decisions } = await factRecords(db, jobId, me);
+		const { tests, readings, decisions, circuits } = await factRecords(db, jobId, me);
 		const states = signOffStates(tests, readings, decisions);
 		const sum: JobSignOffs = { waiting: [], sentBack: [], signed: 0 };
 		for (const t of tests) {
@@ -160,23 +174,55 @@ export async function signOffSummary(db: LocalDb, jobIds: string[], me: Me): Pro
 			else if (s.kind === 'sent_back') sum.sentBack.push({ ...line, note: s.last.note });
 			else if (s.kind === 'signed') sum.signed++;
 		}
+		// Circuit tests (battery, charging, …) by the same rule; one done again since is left out.
+		for (const [id, c] of circuitSignOffStates(circuits, decisions)) {
+			const kind = circuits.find((x) => x.id === id)!.kind;
+			const line = { id, part: KINDS[kind as CircuitKind]?.title ?? 'Circuit test', note: null };
+			if (c.state.kind === 'waiting') sum.waiting.push(line);
+			else if (c.state.kind === 'sent_back' && !c.replaced) sum.sentBack.push({ ...line, note: c.state.last.note });
+			else if (c.state.kind === 'signed') sum.signed++;
+		}
 		out.set(jobId, sum);
 	}
 	return out;
 }
 
 /** A circuit test (battery, draw, drop, charging, relay, sensor) as the job page lists it. */
-export type CircuitTestItem = { id: string; kind: string; verdict: string; summary: string; pending: boolean; at: string };
+export type CircuitTestItem = {
+	id: string;
+	kind: string;
+	verdict: string;
+	summary: string;
+	pending: boolean;
+	at: string;
+	/** An apprentice's waits for a lead's sign-off (when `me` is given). */
+	signOff?: SignOffView;
+};
 
-/** The job's circuit tests on this phone, newest first: the server's result once it has one. */
-export async function readCircuitTests(db: LocalDb, jobId: string): Promise<CircuitTestItem[]> {
+/**
+ * The job's circuit tests on this phone, newest first: the server's result once it has one,
+ * and with `me`, where an apprentice's stands with its sign-off (one sent back and done again
+ * since says nothing more).
+ */
+export async function readCircuitTests(db: LocalDb, jobId: string, me?: Me): Promise<CircuitTestItem[]> {
 	const under = await listByJob(db, jobId);
+	let views = new Map<string, SignOffView>();
+	if (me) {
+		const { circuits, decisions } = await factRecords(db, jobId, me);
+		const people = new Map(((await getMeta<Person[]>(db, PEOPLE)) ?? []).map((p) => [p.id, { name: p.name, role: p.role }]));
+		if (!people.has(me.id)) people.set(me.id, { name: me.name, role: me.role });
+		views = new Map(
+			[...circuitSignOffStates(circuits, decisions)]
+				.filter(([, c]) => !c.replaced)
+				.map(([id, c]) => [id, signOffViewOf(c.state, people)])
+		);
+	}
 	return under
 		.filter((r) => r.entity === 'circuit_test')
 		.map((r) => {
 			const d = r.data as Record<string, unknown>;
 			const res = (d.serverResult ?? d.deviceResult ?? {}) as { verdict?: string; summary?: string };
-			return { id: r.id, kind: String(d.kind), verdict: res.verdict ?? 'cant_tell', summary: res.summary ?? '', pending: r.pending > 0, at: String(d.createdAt ?? r.updatedAt) };
+			return { id: r.id, kind: String(d.kind), verdict: res.verdict ?? 'cant_tell', summary: res.summary ?? '', pending: r.pending > 0, at: String(d.createdAt ?? r.updatedAt), signOff: views.get(r.id) };
 		})
 		.sort((a, b) => b.at.localeCompare(a.at));
 }

@@ -11,6 +11,7 @@
  */
 import type { OverviewQuery } from '../schemas/overview';
 import type { Role } from '../roles';
+import { KINDS, type CircuitKind } from '../flow/circuit';
 
 /** Tests of one part number, person, state and meter, as the database groups them. */
 export type TestGroup = {
@@ -32,6 +33,39 @@ export type TestGroup = {
 	relative: number;
 	/** Finished tests of an apprentice waiting for a lead's sign-off. */
 	waiting: number;
+};
+
+/**
+ * Circuit tests (battery, parasitic draw, voltage drop, charging, relay, crank or cam sensor)
+ * of one kind by one person, as the database groups them. Each is finished when saved and
+ * has the workshop's verdict: out of spec (under, over, not OK), can't tell (charge and
+ * re-test included) or OK.
+ */
+export type CircuitGroup = {
+	kind: string;
+	technicianId: string | null;
+	tests: number;
+	outOfSpec: number;
+	cantTell: number;
+	ok: number;
+	/** Tests where the phone's result differed from the workshop's own judgement. */
+	differ: number;
+	/** An apprentice's tests with no decision of a lead yet. */
+	waiting: number;
+};
+
+export type CircuitRow = {
+	kind: string;
+	/** The kind in words ("Battery test"). */
+	title: string;
+	tests: number;
+	outOfSpec: number;
+	cantTell: number;
+	ok: number;
+	differ: number;
+	waiting: number;
+	/** Out of spec over the tests (0–1), null when none. */
+	failRate: number | null;
 };
 
 /** Lead zero (ohms, leads subtracted) of one meter over one period. */
@@ -162,9 +196,36 @@ export function meterRows(groups: TestGroup[], points: LeadPoint[]): MeterRow[] 
 	});
 }
 
-export function peopleRows(groups: TestGroup[], people: Person[]): PersonRow[] {
+/** One row per kind of circuit test. */
+export function circuitRows(groups: CircuitGroup[]): CircuitRow[] {
+	const by = new Map<string, CircuitRow>();
+	for (const g of groups) {
+		const r = by.get(g.kind) ?? { kind: g.kind, title: KINDS[g.kind as CircuitKind]?.title ?? 'Circuit test', tests: 0, outOfSpec: 0, cantTell: 0, ok: 0, differ: 0, waiting: 0, failRate: null };
+		for (const k of ['tests', 'outOfSpec', 'cantTell', 'ok', 'differ', 'waiting'] as const) r[k] += g[k];
+		by.set(g.kind, r);
+	}
+	return [...by.values()].map((r) => ({ ...r, failRate: rate(r.outOfSpec, r.tests) }));
+}
+
+/** Each person's tests, their circuit tests counted with them (finished, with a result). */
+export function peopleRows(groups: TestGroup[], people: Person[], circuits: CircuitGroup[] = []): PersonRow[] {
 	const byId = new Map(people.map((p) => [p.id, p]));
-	return [...sumBy(groups, (g) => g.technicianId)].map(([id, list]) => {
+	const asGroups: TestGroup[] = circuits.map((c) => ({
+		partNumber: null,
+		technicianId: c.technicianId,
+		state: 'done',
+		meterName: null,
+		tests: c.tests,
+		outOfSpec: c.outOfSpec,
+		cantTell: c.cantTell,
+		ok: c.ok,
+		readings: 0,
+		unresolved: 0,
+		rangeKnown: 0,
+		relative: 0,
+		waiting: c.waiting
+	}));
+	return [...sumBy([...groups, ...asGroups], (g) => g.technicianId)].map(([id, list]) => {
 		const p = id ? byId.get(id) : undefined;
 		const [tests, outOfSpec, cantTell, ok] = (
 			['tests', 'outOfSpec', 'cantTell', 'ok'] as const
@@ -206,15 +267,19 @@ const matches = (text: string | null, filter: string) =>
 
 /** The three tables and the lead-zero series, filtered and sorted as the query asks. */
 export function overviewTables(
-	q: Pick<OverviewQuery, 'part' | 'meter' | 'role' | 'partsSort' | 'metersSort' | 'peopleSort'>,
+	q: Pick<OverviewQuery, 'part' | 'meter' | 'role' | 'partsSort' | 'metersSort' | 'peopleSort'> &
+		Partial<Pick<OverviewQuery, 'circuitsSort'>>,
 	groups: TestGroup[],
 	points: LeadPoint[],
-	people: Person[]
+	people: Person[],
+	circuitGroups: CircuitGroup[] = []
 ) {
 	const parts = partRows(groups).filter((r) => matches(r.partNumber, q.part));
 	const meters = meterRows(groups, points).filter((r) => matches(r.meterName, q.meter));
 	const shown = new Set(meters.map((m) => m.meterName));
-	const persons = peopleRows(groups, people).filter((r) => q.role === 'all' || r.role === q.role);
+	const persons = peopleRows(groups, people, circuitGroups).filter(
+		(r) => q.role === 'all' || r.role === q.role
+	);
 	return {
 		parts: sortRows(
 			parts,
@@ -225,7 +290,12 @@ export function overviewTables(
 		),
 		meters: sortRows(meters, q.metersSort.replace('meter', 'meterName'), (r) => r.meterName ?? ''),
 		leadZero: leadSeries(points).filter((s) => shown.has(s.meterName)),
-		people: sortRows(persons, q.peopleSort, (r) => r.name)
+		people: sortRows(persons, q.peopleSort, (r) => r.name),
+		circuits: sortRows(
+			circuitRows(circuitGroups),
+			(q.circuitsSort ?? 'kind').replace('kind', 'title'),
+			(r) => r.title
+		)
 	};
 }
 export type OverviewTables = ReturnType<typeof overviewTables>;

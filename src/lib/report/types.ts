@@ -6,6 +6,7 @@
  */
 import type { SpecBand } from '../domain/spec';
 import type { TemperatureSnapshot } from '../flow/reading';
+import type { CircuitKind, CircuitLine, CircuitVerdict } from '../flow/circuit';
 
 export type Paper = 'a4' | 'letter';
 export const PAPERS: readonly Paper[] = ['a4', 'letter'];
@@ -65,6 +66,27 @@ export type TestFacts = {
 	readings: ReadingFacts[];
 };
 
+/**
+ * A circuit test (battery, parasitic draw, voltage drop, charging, relay, crank or cam sensor)
+ * as the workshop judged it (`circuit_tests.server_result`), with the few figures typed that
+ * say what was tested.
+ */
+export type CircuitFacts = {
+	kind: CircuitKind;
+	partNumber: string | null;
+	verdict: CircuitVerdict;
+	/** One line per thing judged, with the value and the limit it was judged against. */
+	lines: CircuitLine[];
+	/** Parasitic draw: days until a charged battery is too flat to start the engine. */
+	days: number | null;
+	/** Voltage drop: the side that lost too much. */
+	side: 'feed' | 'earth' | null;
+	/** Voltage drop: the circuit (`starter`, `coil`, `charging`, `other`). */
+	circuit: string | null;
+	/** Sensor: crank or cam. */
+	which: 'crank' | 'cam' | null;
+};
+
 export type FaultCodeFacts = { code: string; text: string };
 
 export type ReportFacts = {
@@ -88,6 +110,8 @@ export type ReportFacts = {
 	tests: TestFacts[];
 	sparks: { position: string; gapMm: number; outcome: 'go' | 'weak' | 'none' }[];
 	swaps: { fromPosition: string; toPosition: string; conclusion: 'fault_followed' | 'fault_stayed' | 'inconclusive' }[];
+	/** Circuit tests in feed order (none in facts gathered before they existed). */
+	circuits?: CircuitFacts[];
 	workDone: string | null;
 	recommendations: { grade: RecommendationGrade; text: string }[];
 	photos: ReportPhoto[];
@@ -98,7 +122,12 @@ export type ReportFacts = {
 /** A finding's outcome in three words a customer reads: OK, out of spec, can't tell. */
 export type Outcome = 'ok' | 'out' | 'unclear';
 
-export type Figure = { label: string; value: string; spec: string; result: string };
+/**
+ * One figure of a finding. `specLabel` names what `spec` is: the maker's figure by default; a
+ * circuit test's limit may be the vehicle's sheet or common practice, so it says "Judged
+ * against". An empty `spec` is not printed.
+ */
+export type Figure = { label: string; value: string; spec: string; result: string; specLabel?: string };
 
 export type Finding = {
 	outcome: Outcome;

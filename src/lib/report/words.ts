@@ -4,10 +4,12 @@
  *
  * Each tested position of a part is one finding: its outcome (OK, out of spec, can't tell)
  * is the worst of its checks, said in one plain sentence, with the figures beneath it (value
- * with its unit, the maker's figure with its temperature, and the result in words).
+ * with its unit, the maker's figure with its temperature, and the result in words). Each
+ * circuit test (battery, charging, …) is one finding too (`circuit-words.ts`).
  */
 import { normalizeUnit } from '../domain/units';
 import { specText, valueText } from './figures';
+import { circuitFinding, circuitTested } from './circuit-words';
 import type {
 	CheckFacts,
 	ComponentKindName,
@@ -276,7 +278,8 @@ export function buildReport(f: ReportFacts): ReportDoc {
 	const findings = [
 		...f.tests.flatMap(findingsOfTest),
 		...f.sparks.map(sparkFinding),
-		...f.swaps.map(swapFinding)
+		...f.swaps.map(swapFinding),
+		...(f.circuits ?? []).map(circuitFinding)
 	];
 	const counts = { ok: 0, out: 0, unclear: 0 } as Record<Outcome, number>;
 	for (const x of findings) counts[x.outcome]++;
@@ -294,6 +297,7 @@ export function buildReport(f: ReportFacts): ReportDoc {
 			heading: 'Coil swap test',
 			lines: f.swaps.map((s) => `Coil moved from ${isCylinder(s.fromPosition) ? 'cylinder ' : ''}${s.fromPosition} to ${isCylinder(s.toPosition) ? 'cylinder ' : ''}${s.toPosition}`)
 		});
+	for (const c of f.circuits ?? []) tested.push(circuitTested(c));
 	const code = (c: { code: string; text: string }) => (c.text ? `${c.code}: ${c.text}` : c.code);
 	const codes = [
 		f.codesBefore.length ? { heading: 'Fault codes stored before the work', lines: f.codesBefore.map(code) } : null,

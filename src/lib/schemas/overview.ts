@@ -20,6 +20,7 @@ export const METER_SORTS = [
 	'unresolvedRate'
 ] as const;
 export const PEOPLE_SORTS = ['name', 'role', 'tests', 'finished', 'cantTellRate', 'waiting'] as const;
+export const CIRCUIT_SORTS = ['kind', 'tests', 'outOfSpec', 'cantTell', 'ok', 'differ', 'waiting'] as const;
 export const OVERVIEW_TABLES = ['parts', 'meters', 'lead-zero', 'people'] as const;
 export type OverviewTable = (typeof OVERVIEW_TABLES)[number];
 
@@ -37,7 +38,8 @@ export const overviewQuery = z
 		role: z.enum(['all', 'technician', 'apprentice', 'lead', 'owner']).default('all'),
 		partsSort: sortParam(PART_SORTS, '-tests'),
 		metersSort: sortParam(METER_SORTS, 'meter'),
-		peopleSort: sortParam(PEOPLE_SORTS, '-tests')
+		peopleSort: sortParam(PEOPLE_SORTS, '-tests'),
+		circuitsSort: sortParam(CIRCUIT_SORTS, 'kind')
 	})
 	.refine((q) => !q.from || !q.to || q.from <= q.to, {
 		message: 'The start is after the end',

@@ -14,7 +14,13 @@ import { limitFromBase, plainNumber } from '../library/limits';
 import { ROLE_LABELS } from '../labels';
 import type { Role } from '../roles';
 import { signOffStates, type FactDecision } from './facts';
-import { MODE_TEXT, SIGNOFF_TEXT, type Decision, type SignOffKind } from './signoff';
+import {
+	MODE_TEXT,
+	SIGNOFF_TEXT,
+	type Decision,
+	type SignOffKind,
+	type SignOffState
+} from './signoff';
 
 type Rec = Record<string, unknown>;
 export type SheetChecks = {
@@ -294,30 +300,36 @@ function signOffViews(input: BuildInput): Map<string, SignOffView> {
 		at: iso(d.createdAt ?? d.deviceTime),
 		order: orderOf(d)
 	}));
-	const who = (d: Decision) => personOf(input.people, d.by);
 	return new Map(
-		[...signOffStates(tests, readings, decisions)].map(([id, s]) => {
-			const view: SignOffView = {
-				kind: s.kind,
-				text: SIGNOFF_TEXT[s.kind],
-				by: null,
-				at: null,
-				note: null,
-				earlierNote: null
-			};
-			if (s.kind === 'signed')
-				Object.assign(view, {
-					by: `${who(s.last)} · ${MODE_TEXT[s.last.mode]}`,
-					at: s.last.at,
-					note: s.last.note
-				});
-			else if (s.kind === 'sent_back')
-				Object.assign(view, { by: who(s.last), at: s.last.at, note: s.last.note });
-			else if (s.kind === 'waiting' || s.kind === 'in_progress')
-				view.earlierNote = s.sentBack?.note ?? null;
-			return [id, view];
-		})
+		[...signOffStates(tests, readings, decisions)].map(([id, s]) => [
+			id,
+			signOffViewOf(s, input.people)
+		])
 	);
+}
+
+/** A sign-off state as the badge and its detail show it (a coil test's or a circuit test's). */
+export function signOffViewOf(s: SignOffState, people: People): SignOffView {
+	const who = (d: Decision) => personOf(people, d.by);
+	const view: SignOffView = {
+		kind: s.kind,
+		text: SIGNOFF_TEXT[s.kind],
+		by: null,
+		at: null,
+		note: null,
+		earlierNote: null
+	};
+	if (s.kind === 'signed')
+		Object.assign(view, {
+			by: `${who(s.last)} · ${MODE_TEXT[s.last.mode]}`,
+			at: s.last.at,
+			note: s.last.note
+		});
+	else if (s.kind === 'sent_back')
+		Object.assign(view, { by: who(s.last), at: s.last.at, note: s.last.note });
+	else if (s.kind === 'waiting' || s.kind === 'in_progress')
+		view.earlierNote = s.sentBack?.note ?? null;
+	return view;
 }
 
 function testView(

@@ -33,7 +33,8 @@ export function groupByTable<T, V>(
 	return groups;
 }
 
-const camelCache = new Map<string, string>();
+/** Names spelled as the mutable records spell them (a test's `needsSignOff`). */
+const camelCache = new Map<string, string>([['needs_signoff', 'needsSignOff']]);
 /** A column's name as the record's key: `server_result` → `serverResult`. */
 export const camel = (s: string) => {
 	let c = camelCache.get(s);
@@ -56,7 +57,7 @@ export function appendRecord(entity: string, row: Record<string, unknown>): Reco
 		out[camel(k)] =
 			JSON_COLUMNS.has(k) && typeof v === 'string'
 				? json(v)
-				: k === 'mismatch'
+				: k === 'mismatch' || k === 'needs_signoff'
 					? Boolean(v)
 					: k === 'range_unresolved'
 						? v == null

@@ -394,6 +394,34 @@ export async function customerPhotos(actor: Actor, jobId: string): Promise<Repor
 	return out;
 }
 
+/** The longest side of a photo printed in the customer's PDF (px): 80 mm wide at about 380 dpi. */
+export const PRINT_PX = 1200;
+/** JPEG quality of a printed photo: sharp on paper, about 150–300 kB each. */
+export const PRINT_QUALITY = 80;
+
+/**
+ * A photo of the workshop `workshopId` at print size for the customer's PDF, made at PDF time
+ * with sharp from the original in the photo store: upright, at most `PRINT_PX` on its longest
+ * side (never enlarged), JPEG at `PRINT_QUALITY`. Null when the photo is gone (removed, purged,
+ * another workshop's, or its object missing) or cannot be read: the caller falls back to the
+ * thumbnail the report carries.
+ */
+export async function printPhoto(workshopId: string, photoId: string): Promise<Buffer | null> {
+	if (!z.uuid().safeParse(photoId).success) return null;
+	const row = await photoRow(photoId.toLowerCase());
+	if (!row || row.workshop_id !== workshopId || row.purged_at) return null;
+	const marks = await markRows(workshopId, [row.id as string]);
+	if (photoStates(marks).get(row.id as string)?.removed) return null;
+	const original = await getObject(String(row.object_key)).catch(() => null);
+	if (!original) return null;
+	return sharp(original)
+		.rotate()
+		.resize(PRINT_PX, PRINT_PX, { fit: 'inside', withoutEnlargement: true })
+		.jpeg({ quality: PRINT_QUALITY })
+		.toBuffer()
+		.catch(() => null);
+}
+
 /**
  * Delete from storage the objects of photos removed more than `days` days before `now`, and
  * mark their rows purged; returns how many photos were purged.

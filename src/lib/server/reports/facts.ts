@@ -1,7 +1,8 @@
 /**
  * The facts of a job for its customer report, read from the workshop's records: the job,
  * its vehicle and customer, each test with its pinned sheet and the latest server result of
- * every check at every position, the spark and swap tests, who tested, and the workshop's
+ * every check at every position, the spark and swap tests, the circuit tests (battery,
+ * charging, …) with the workshop's result, who tested, and the workshop's
  * details. Everything is scoped to the actor's workshop.
  */
 import { Op, QueryTypes } from 'sequelize';
@@ -18,6 +19,9 @@ import { jobRecords } from '../services/job-facts';
 import { signOffStates } from '../../tests/facts';
 import { isSignedOff } from '../../tests/signoff';
 import { customerPhotos } from '../photos/service';
+import { circuitSignOffStates } from '../../tests/circuit-signoff';
+import type { CircuitFacts } from '../../report/types';
+import type { CircuitResult } from '../../flow/circuit';
 
 /**
  * The photos of a job chosen for the customer (`photos/service.ts`: marked "for the
@@ -108,6 +112,27 @@ export async function jobWithParties(actor: Actor, jobId: string): Promise<JobPa
 	return { job, customer, vehicle };
 }
 
+/** A stored circuit test as the report's facts: the workshop's result and what says what was tested. */
+function circuitFactsOf(r: Row): CircuitFacts {
+	const result = parseNumbers<CircuitResult>(String(r.server_result));
+	const inputs = JSON.parse(String(r.inputs)) as Record<string, unknown>;
+	const text = (k: string) => (typeof inputs[k] === 'string' && inputs[k] ? (inputs[k] as string) : null);
+	return {
+		kind: r.kind as CircuitFacts['kind'],
+		partNumber: text('partNumber'),
+		verdict: result.verdict,
+		lines: result.lines ?? [],
+		days: typeof result.days === 'number' && Number.isFinite(result.days) ? result.days : null,
+		side: result.side ?? null,
+		circuit: text('circuit'),
+		which: r.kind !== 'sensor' ? null : text('which') === 'cam' ? 'cam' : 'crank'
+	};
+}
+
+/** Apprentices' circuit tests left out of the report (not signed off, and not done again since). */
+const awaitingCircuits = (states: ReturnType<typeof circuitSignOffStates>) =>
+	[...states.values()].filter((s) => !isSignedOff(s.state) && !s.replaced).length;
+
 /**
  * Everything the report says about the job, plus the notes the sender adds. A test logged by
  * an apprentice goes in only once a lead has signed it off (its latest decision a sign-off,
@@ -122,19 +147,28 @@ export async function gatherFacts(
 	now = new Date()
 ): Promise<{ facts: ReportFacts; awaitingSignOff: number }> {
 	const { job, customer, vehicle } = p;
-	const [all, records, sparks, swaps, photos] = await Promise.all([
+	const [all, records, sparks, swaps, photos, circuitRows] = await Promise.all([
 		testsOf(actor, job.id),
 		jobRecords(actor, job.id),
 		select(`SELECT position, gap_mm, outcome FROM spark_tests WHERE workshop_id = ? AND job_id = ? ORDER BY seq`, [actor.workshopId, job.id]),
 		select(`SELECT from_position, to_position, conclusion FROM swap_tests WHERE workshop_id = ? AND job_id = ? ORDER BY seq`, [actor.workshopId, job.id]),
-		photosForCustomer(actor, job.id)
+		photosForCustomer(actor, job.id),
+		select(`SELECT id, kind, inputs, server_result, created_by FROM circuit_tests WHERE workshop_id = ? AND job_id = ? ORDER BY seq`, [actor.workshopId, job.id])
 	]);
-	const testerIds = [...new Set([...all.map((t) => t.technicianId), job.assigneeId].filter(Boolean))] as string[];
+	const testerIds = [...new Set([...all.map((t) => t.technicianId), ...circuitRows.map((r) => r.created_by as string), job.assigneeId].filter(Boolean))] as string[];
 	const users = await User.findAll({ where: { workshopId: actor.workshopId, id: testerIds } });
 	const names = new Map(users.map((u) => [u.id, u.name]));
 	const states = signOffStates(records.tests, records.readings, records.decisions);
 	const tests = all.filter((t) => isSignedOff(states.get(t.id) ?? 'not_needed'));
-	const testers = tests.some((t) => t.readings.length) ? tests.filter((t) => t.readings.length).map((t) => t.technicianId) : [job.assigneeId];
+	// Circuit tests by the same rule: an apprentice's only once signed off.
+	const circuitStates = circuitSignOffStates(records.circuits, records.decisions);
+	const shownCircuits = circuitRows.filter((r) => isSignedOff(circuitStates.get(String(r.id))?.state ?? 'not_needed'));
+	const circuits = shownCircuits.map(circuitFactsOf);
+	const tested = [
+		...tests.filter((t) => t.readings.length).map((t) => t.technicianId),
+		...shownCircuits.map((r) => (r.created_by as string | null) ?? null)
+	];
+	const testers = tested.length ? tested : [job.assigneeId];
 	const facts: ReportFacts = {
 		jobNumber: job.number,
 		complaint: job.complaint,
@@ -165,10 +199,11 @@ export async function gatherFacts(
 			toPosition: String(s.to_position),
 			conclusion: s.conclusion as 'fault_followed' | 'fault_stayed' | 'inconclusive'
 		})),
+		circuits,
 		workDone: notes.workDone ?? null,
 		recommendations: notes.recommendations,
 		photos,
 		date: now.toISOString().slice(0, 10)
 	};
-	return { facts, awaitingSignOff: all.length - tests.length };
+	return { facts, awaitingSignOff: all.length - tests.length + awaitingCircuits(circuitStates) };
 }

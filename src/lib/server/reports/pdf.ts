@@ -3,7 +3,9 @@
  * page, in the shipped Roboto Condensed (fonts.ts), on A4 or US Letter. Each finding shows
  * its outcome as a word and a shape (circle OK, triangle out of spec, diamond can't tell)
  * as well as a colour. Photos marked for the customer are drawn at most 80 mm wide, two to
- * a row, with their captions; the bytes come from `loadPhoto`.
+ * a row, with their captions; the bytes come from `loadPhoto` (the server passes
+ * `printPhotoLoader`: a print-size picture made from the original, the report's thumbnail
+ * when the original is gone).
  */
 import PDFDocument from 'pdfkit';
 import type { Outcome, Paper, ReportDoc, ReportPhoto } from '../../report/types';
@@ -18,6 +20,17 @@ const SIZE: Record<Paper, 'A4' | 'LETTER'> = { a4: 'A4', letter: 'LETTER' };
 
 type Doc = InstanceType<typeof PDFDocument>;
 type TextOpts = { size?: number; weight?: Weight; color?: string; x?: number; width?: number; gap?: number };
+
+/**
+ * Photos at print size for the PDF of a report of `workshopId` (`printPhoto`), the thumbnail
+ * inside the report when the original is gone.
+ */
+export function printPhotoLoader(
+	workshopId: string,
+	print: (workshopId: string, photoId: string) => Promise<Buffer | null>
+): NonNullable<PdfOptions['loadPhoto']> {
+	return async (p) => (await print(workshopId, p.id)) ?? inlineBytes(p);
+}
 
 export type PdfOptions = {
 	paper: Paper;
@@ -76,7 +89,7 @@ function lines(doc: Doc, head: string, rows: string[]) {
 }
 
 /** The bytes of a photo whose `src` is a data address (as `customerPhotos` gives them). */
-const inlineBytes = async (p: ReportPhoto) => {
+export const inlineBytes = async (p: ReportPhoto) => {
 	const m = /^data:image\/(?:jpeg|png);base64,(.+)$/.exec(p.src);
 	return m ? Buffer.from(m[1], 'base64') : null;
 };
@@ -170,7 +183,7 @@ export async function renderReportPdf(r: ReportDoc, o: PdfOptions): Promise<Buff
 		write(doc, `${f.outcomeText} · ${f.title}`, { x: doc.page.margins.left + 16, size: 12, weight: 700, color: COLOUR[f.outcome] });
 		write(doc, f.sentence, { x: doc.page.margins.left + 16, gap: 2 });
 		for (const g of f.figures)
-			write(doc, `${g.label}: ${g.value}. Maker’s figure: ${g.spec}. Result: ${g.result}.`, {
+			write(doc, `${g.label}: ${g.value}.${g.spec ? ` ${g.specLabel ?? 'Maker’s figure'}: ${g.spec}.` : ''} Result: ${g.result}.`, {
 				x: doc.page.margins.left + 16,
 				size: 10,
 				color: MUTED

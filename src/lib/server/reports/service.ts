@@ -28,7 +28,8 @@ import { AppError, ForbiddenError, NotFoundError, ValidationError } from '../err
 import { cancelQueued, enqueueMail, LINK_PLACEHOLDER, mailStatusOfReports } from '../mail/outbox';
 import { kickMailWorker } from '../mail/worker';
 import { gatherFacts, jobWithParties, type JobParties } from './facts';
-import { renderReportPdf } from './pdf';
+import { printPhotoLoader, renderReportPdf } from './pdf';
+import { printPhoto } from '../photos/service';
 import { maySendReport, mayWithdrawReport } from './rules';
 import { readReportSettings, type ReportSettings } from './settings';
 import { hashReportToken, looksLikeToken, newReportToken } from './token';
@@ -128,7 +129,7 @@ export async function sendReport(actor: Actor, jobId: string, input: unknown, ba
 		const why = emailBlock(l.customer);
 		if (why) throw new AppError(400, 'no_consent', why, { fields: { channel: why } });
 	}
-	const pdf = await renderReportPdf(doc, { paper: s.paper });
+	const pdf = await renderReportPdf(doc, { paper: s.paper, loadPhoto: printPhotoLoader(actor.workshopId, printPhoto) });
 	const token = newReportToken();
 	const link = `${baseUrl.replace(/\/$/, '')}/r/${token}`;
 	const id = uuidv7();
@@ -249,7 +250,7 @@ export async function keptPdf(actor: Actor, jobId: string, reportId: string): Pr
 }
 
 export type Opened =
-	| { state: 'open'; id: string; doc: ReportDoc; paper: Paper; pdf: Buffer; expiresAt: Date }
+	| { state: 'open'; id: string; workshopId: string; doc: ReportDoc; paper: Paper; pdf: Buffer; expiresAt: Date }
 	| { state: 'expired' | 'withdrawn'; workshopName: string }
 	| { state: 'unknown' };
 
@@ -257,7 +258,7 @@ export type Opened =
 export async function openReport(token: string, now = new Date()): Promise<Opened> {
 	if (!looksLikeToken(token)) return { state: 'unknown' };
 	const [r] = await db().query<Record<string, unknown>>(
-		`SELECT r.id, r.content, r.paper, r.pdf, r.expires_at, r.withdrawn_at, w.name AS workshop
+		`SELECT r.id, r.workshop_id, r.content, r.paper, r.pdf, r.expires_at, r.withdrawn_at, w.name AS workshop
 		 FROM reports r JOIN workshops w ON w.id = r.workshop_id WHERE r.token_hash = ?`,
 		{ replacements: [hashReportToken(token)], type: QueryTypes.SELECT }
 	);
@@ -267,6 +268,7 @@ export async function openReport(token: string, now = new Date()): Promise<Opene
 	return {
 		state: 'open',
 		id: String(r.id),
+		workshopId: String(r.workshop_id),
 		doc: JSON.parse(String(r.content)) as ReportDoc,
 		paper: r.paper as Paper,
 		pdf: Buffer.from(r.pdf as Buffer),

@@ -9,6 +9,11 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import type { JobFacts } from '../../rules';
 import { jobFactsOf, type FactDecision, type FactReading, type FactTest } from '../../tests/facts';
 import { signOffStateOf, type SignOffKind } from '../../tests/signoff';
+import {
+	circuitSignOffStates,
+	closingCircuits,
+	type FactCircuit
+} from '../../tests/circuit-signoff';
 import type { Actor } from '../auth/types';
 import { db } from '../db';
 
@@ -28,7 +33,10 @@ export const decisionOf = (r: Row): FactDecision => ({
 	order: Number(r.seq)
 });
 
-/** The live tests of a job (oldest first), their readings and the decisions on them, as facts. */
+/**
+ * The live tests of a job (oldest first), their readings, its circuit tests (feed order) and
+ * the decisions on both, as facts.
+ */
 export async function jobRecords(actor: Actor, jobId: string, t?: Transaction) {
 	const w = actor.workshopId;
 	const tests = await select(
@@ -47,7 +55,18 @@ export async function jobRecords(actor: Actor, jobId: string, t?: Transaction) {
 		'SELECT test_id, decision, mode, note, created_by, created_at, seq FROM signoffs WHERE job_id = ? AND workshop_id = ?',
 		[jobId, w]
 	);
+	const circuits = await select(
+		t,
+		'SELECT id, kind, needs_signoff, seq FROM circuit_tests WHERE job_id = ? AND workshop_id = ? ORDER BY seq',
+		[jobId, w]
+	);
 	return {
+		circuits: circuits.map((r): FactCircuit => ({
+			id: String(r.id),
+			kind: String(r.kind),
+			needsSignOff: Boolean(r.needs_signoff),
+			order: Number(r.seq)
+		})),
 		tests: tests.map((r): FactTest => ({
 			id: String(r.id),
 			partNumber: (r.part_number as string | null) ?? null,
@@ -85,14 +104,21 @@ export async function loadJobFacts(
 	jobId: string,
 	t?: Transaction
 ): Promise<JobFacts> {
-	const { tests, readings, decisions } = await jobRecords(actor, jobId, t);
-	return jobFactsOf(tests, readings, decisions, await openClashesOn(actor, jobId, t));
+	const { tests, readings, decisions, circuits } = await jobRecords(actor, jobId, t);
+	return {
+		...jobFactsOf(tests, readings, decisions, await openClashesOn(actor, jobId, t)),
+		circuits: closingCircuits(circuits, decisions)
+	};
 }
 
 /** Whether a test needs a sign-off and where it stands, as `refuseSignOff` reads it. */
 export type SignOffFacts = { jobId: string; needsSignOff: boolean; signOff: SignOffKind };
 
-/** The sign-off facts of the live tests `ids` of the actor's workshop (absent: no such test). */
+/**
+ * The sign-off facts of the live tests `ids` of the actor's workshop (absent: no such test).
+ * An id may name a circuit test, which is read with the job's other circuit tests of its kind
+ * (a later one replaces one sent back).
+ */
 export async function signOffFacts(
 	actor: Actor,
 	ids: string[],
@@ -114,8 +140,41 @@ export async function signOffFacts(
 			[ids, w]
 		)
 	).map(decisionOf);
-	return new Map(
-		tests.map((r) => {
+	const found = new Set(tests.map((r) => String(r.id)));
+	const rest = ids.filter((id) => !found.has(id));
+	const circuits = rest.length
+		? await select(
+				t,
+				`SELECT c.id, c.job_id, c.kind, c.needs_signoff, c.seq FROM circuit_tests c
+				 JOIN circuit_tests me ON me.job_id = c.job_id AND me.kind = c.kind AND me.workshop_id = c.workshop_id
+				 WHERE me.id IN (?) AND me.workshop_id = ?`,
+				[rest, w]
+			)
+		: [];
+	const circuitFacts = new Map<string, SignOffFacts>();
+	if (circuits.length) {
+		const byId = new Map(circuits.map((r) => [String(r.id), r]));
+		const states = circuitSignOffStates(
+			[...byId.values()].map((r) => ({
+				id: String(r.id),
+				kind: String(r.kind),
+				needsSignOff: Boolean(r.needs_signoff),
+				order: Number(r.seq)
+			})),
+			decisions
+		);
+		for (const id of rest) {
+			const r = byId.get(id);
+			if (r)
+				circuitFacts.set(id, {
+					jobId: String(r.job_id),
+					needsSignOff: Boolean(r.needs_signoff),
+					signOff: states.get(id)!.state.kind
+				});
+		}
+	}
+	return new Map([
+		...tests.map((r) => {
 			const test = { needsSignOff: Boolean(r.needs_signoff), state: String(r.state) };
 			const mine = decisions.filter((d) => d.testId === r.id);
 			const last = r.reading_seq == null ? null : Number(r.reading_seq);
@@ -126,7 +185,8 @@ export async function signOffFacts(
 					needsSignOff: test.needsSignOff,
 					signOff: signOffStateOf(test, mine, last).kind
 				}
-			];
-		})
-	);
+			] as const;
+		}),
+		...circuitFacts
+	]);
 }

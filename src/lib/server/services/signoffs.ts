@@ -9,7 +9,9 @@
  *     actor may not see it, 403 with the reason otherwise);
  *  3. the test's summary (the overview's waiting count), the next feed seq, the row — its
  *     signer is the signed-in user, never a field — and the audit row.
- * Also the desk's list of tests waiting for a sign-off or sent back, and its count.
+ * Also the desk's list of tests waiting for a sign-off or sent back, and its count. A circuit
+ * test (battery, charging, …) saved by an apprentice is signed off the same way: the decision's
+ * `test_id` is the circuit test's id, and no test summary is kept for it.
  */
 import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { v7 as uuidv7 } from 'uuid';
@@ -50,9 +52,11 @@ export async function decideTest(
 			where: { id: testId, workshopId: w, deletedAt: { [Op.is]: null } },
 			transaction: t
 		});
-		if (!test) throw new NotFoundError('Test');
-		const found = await jobWithVehicle(actor, test.jobId, t);
+		// Not a coil test: an apprentice's circuit test (battery, charging, …) is signed off alike.
 		const facts = (await signOffFacts(actor, [testId], t)).get(testId);
+		if (!test && !facts) throw new NotFoundError('Test');
+		const jobId = test ? test.jobId : facts!.jobId;
+		const found = await jobWithVehicle(actor, jobId, t);
 		const refusal = refuseAppend(
 			actor,
 			'signoff',
@@ -63,7 +67,7 @@ export async function decideTest(
 		if (refusal) throw new ForbiddenError(refusal.message);
 		const delta = emptyDelta();
 		addDecision(delta, decision);
-		await addToSummaries(t, w, new Map([[testId, delta]]));
+		if (test) await addToSummaries(t, w, new Map([[testId, delta]]));
 		const [id, opId, now] = [uuidv7(), uuidv7(), new Date()];
 		const seq = await nextSeq(t, w);
 		await rawQuery(
@@ -78,7 +82,7 @@ export async function decideTest(
 				actor.userId,
 				actor.deviceId ?? 'web',
 				sqlDateTime(now),
-				test.jobId,
+				jobId,
 				testId,
 				mode,
 				decision,
@@ -113,7 +117,23 @@ export type DueTest = {
 	due: 'lead' | 'apprentice';
 	/** A send-back before it (waiting again since readings were added). */
 	sentBackBefore: boolean;
+	/** A circuit test's kind (battery, charging, …); null for a coil or part test. */
+	circuitKind: string | null;
 };
+
+/**
+ * Apprentices' circuit tests waiting for a lead or sent back, their latest decision beside
+ * them; one sent back and done again since (a later circuit test of its kind on the job) is
+ * replaced and left out (`tests/circuit-signoff.ts`).
+ */
+const CIRCUIT_DUE_SQL = `SELECT * FROM (
+	SELECT c.id, c.job_id, c.kind, c.created_by, c.created_at, c.seq, j.number, v.make, v.model, v.plate,
+		(SELECT s.decision FROM signoffs s WHERE s.test_id = c.id AND s.workshop_id = c.workshop_id ORDER BY s.seq DESC LIMIT 1) AS signoff,
+		EXISTS (SELECT 1 FROM circuit_tests n WHERE n.job_id = c.job_id AND n.kind = c.kind AND n.seq > c.seq) AS redone
+	FROM circuit_tests c JOIN jobs j ON j.id = c.job_id AND j.deleted_at IS NULL
+	LEFT JOIN vehicles v ON v.id = j.vehicle_id
+	WHERE c.workshop_id = ? AND c.needs_signoff = 1) d
+	WHERE d.signoff IS NULL OR (d.signoff = 'sent_back' AND d.redone = 0)`;
 
 const DUE_SQL = `SELECT t.id, t.job_id, t.part_number, t.position, t.technician_id, t.state, t.updated_at,
 		j.number, v.make, v.model, v.plate, s.signoff, s.revised
@@ -132,7 +152,7 @@ export async function listDue(actor: Actor): Promise<DueTest[]> {
 		replacements: [actor.workshopId],
 		type: QueryTypes.SELECT
 	});
-	return rows.map((r) => ({
+	const tests: DueTest[] = rows.map((r) => ({
 		id: String(r.id),
 		jobId: String(r.job_id),
 		jobNumber: Number(r.number),
@@ -142,15 +162,41 @@ export async function listDue(actor: Actor): Promise<DueTest[]> {
 		technicianId: (r.technician_id as string | null) ?? null,
 		changedAt: new Date(r.updated_at as string).toISOString(),
 		due: r.signoff === 'sent_back' && !Number(r.revised) ? 'apprentice' : 'lead',
-		sentBackBefore: r.signoff === 'sent_back'
+		sentBackBefore: r.signoff === 'sent_back',
+		circuitKind: null
 	}));
+	const circuits = await db().query<Record<string, unknown>>(
+		`${CIRCUIT_DUE_SQL} ORDER BY d.created_at, d.id`,
+		{
+			replacements: [actor.workshopId],
+			type: QueryTypes.SELECT
+		}
+	);
+	const both: DueTest[] = [
+		...tests,
+		...circuits.map((r) => ({
+			id: String(r.id),
+			jobId: String(r.job_id),
+			jobNumber: Number(r.number),
+			vehicle: r.make ? [`${r.make} ${r.model}`, r.plate].filter(Boolean).join(' · ') : null,
+			partNumber: null,
+			positions: null,
+			technicianId: (r.created_by as string | null) ?? null,
+			changedAt: new Date(r.created_at as string).toISOString(),
+			due: r.signoff === 'sent_back' ? ('apprentice' as const) : ('lead' as const),
+			sentBackBefore: r.signoff === 'sent_back',
+			circuitKind: String(r.kind)
+		}))
+	];
+	return both.sort((a, b) => a.changedAt.localeCompare(b.changedAt) || a.id.localeCompare(b.id));
 }
 
 /** How many finished apprentice tests wait for a lead's sign-off (the navigation's count). */
 export async function countWaiting(actor: Pick<Actor, 'workshopId'>): Promise<number> {
 	const [row] = await db().query<{ n: number | bigint }>(
-		`SELECT COUNT(*) AS n FROM (${DUE_SQL}) d WHERE d.signoff IS NULL OR d.revised = 1`,
-		{ replacements: [actor.workshopId], type: QueryTypes.SELECT }
+		`SELECT (SELECT COUNT(*) FROM (${DUE_SQL}) d WHERE d.signoff IS NULL OR d.revised = 1)
+			+ (SELECT COUNT(*) FROM (${CIRCUIT_DUE_SQL}) e WHERE e.signoff IS NULL) AS n`,
+		{ replacements: [actor.workshopId, actor.workshopId], type: QueryTypes.SELECT }
 	);
 	return Number(row?.n ?? 0);
 }

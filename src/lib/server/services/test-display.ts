@@ -6,7 +6,8 @@
  */
 import { QueryTypes } from 'sequelize';
 import { Op } from 'sequelize';
-import { buildJobTests, type SheetChecks } from '../../tests/view';
+import { buildJobTests, signOffViewOf, type SheetChecks, type SignOffView } from '../../tests/view';
+import { circuitSignOffStates } from '../../tests/circuit-signoff';
 import type { Actor } from '../auth/types';
 import { db } from '../db';
 import { SpecSheet, Test, User } from '../db/models';
@@ -92,16 +93,47 @@ export type CircuitTestView = {
 	mismatch: boolean;
 	by: string | null;
 	at: string;
+	/** An apprentice's circuit test waits for a lead's sign-off, as a coil test does. */
+	signOff: SignOffView;
+	/** Sent back and done again since (a later test of its kind on the job). */
+	replaced: boolean;
 };
 
 /** The circuit tests (battery, draw, drop, charging, relay, sensor) of a job the actor may open, newest first. */
 export async function jobCircuitTests(actor: Actor, jobId: string): Promise<CircuitTestView[]> {
 	await seenJob(actor, jobId);
-	const rows = (await appendRows(actor, 'circuit_tests', 'circuit_test', jobId)) as Record<string, unknown>[];
-	const users = new Map((await User.findAll({ where: { workshopId: actor.workshopId }, attributes: ['id', 'name'] })).map((u) => [u.id, u.name]));
+	const [rows, signoffs, people] = await Promise.all([
+		appendRows(actor, 'circuit_tests', 'circuit_test', jobId) as Promise<Record<string, unknown>[]>,
+		appendRows(actor, 'signoffs', 'signoff', jobId) as Promise<(Record<string, unknown> & { order: number })[]>,
+		User.findAll({ where: { workshopId: actor.workshopId }, attributes: ['id', 'name', 'role'] })
+	]);
+	const users = new Map(people.map((u) => [u.id, u.name]));
+	const standing = circuitSignOffStates(
+		rows.map((r) => ({
+			id: String(r.id),
+			kind: String(r.kind),
+			needsSignOff: Boolean(r.needsSignOff),
+			order: Number(r.order)
+		})),
+		signoffs.map((d) => ({
+			testId: String(d.testId),
+			decision: d.decision === 'sent_back' ? 'sent_back' : 'signed',
+			mode: d.mode === 'witnessed' ? 'witnessed' : 'remote',
+			note: (d.note as string | null) ?? null,
+			by: (d.createdBy as string | null) ?? null,
+			at: d.createdAt ? new Date(d.createdAt as string).toISOString() : null,
+			order: d.order
+		}))
+	);
+	const who = new Map(people.map((u) => [u.id, { name: u.name, role: u.role }]));
 	return rows
 		.map((r) => {
-			const server = r.serverResult as { verdict: string; summary: string; lines: CircuitTestView['lines']; working: string[] };
+			const server = r.serverResult as {
+				verdict: string;
+				summary: string;
+				lines: CircuitTestView['lines'];
+				working: string[];
+			};
 			const device = r.deviceResult as { verdict?: string } | null;
 			return {
 				id: r.id as string,
@@ -113,7 +145,9 @@ export async function jobCircuitTests(actor: Actor, jobId: string): Promise<Circ
 				deviceVerdict: device?.verdict ?? null,
 				mismatch: Boolean(r.mismatch),
 				by: users.get(r.createdBy as string) ?? null,
-				at: new Date(r.createdAt as string).toISOString()
+				at: new Date(r.createdAt as string).toISOString(),
+				signOff: signOffViewOf(standing.get(String(r.id))!.state, who),
+				replaced: standing.get(String(r.id))!.replaced
 			};
 		})
 		.reverse();

@@ -85,7 +85,7 @@ const COLUMNS: Record<AppendTable, readonly string[]> = {
 	signoffs: [...BASE, 'mode', 'decision', 'note'],
 	spark_tests: [...BASE, 'note', 'position', 'gap_mm', 'outcome'],
 	swap_tests: [...BASE, 'note', 'from_position', 'to_position', 'before_counts', 'after_counts', 'conclusion'],
-	circuit_tests: [...BASE, 'note', 'kind', 'inputs', 'device_result', 'server_result', 'mismatch', 'server_verdict'],
+	circuit_tests: [...BASE, 'note', 'kind', 'inputs', 'device_result', 'server_result', 'mismatch', 'server_verdict', 'needs_signoff'],
 	// Photos are written by their upload (`photos/service.ts`), never by a push.
 	photos: [...BASE],
 	photo_marks: [...BASE, 'photo_id', 'mark']
@@ -165,15 +165,26 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 	const tests = await loadTests(ids('testId'), ctx);
 	// The photos that marks refer to (their job and author).
 	const photos = await photoFacts(ctx.actor, ids('photoId'), ctx.t);
-	const jobs = await loadJobs([...new Set([...ids('jobId'), ...[...photos.values()].map((p) => p.jobId)])], ctx);
-	// Where each signed-off test stands (only when the push carries sign-offs).
+	// Where each signed-off test stands (only when the push carries sign-offs); a circuit test's
+	// sign-off names the circuit test, whose job is loaded with the others.
 	const signIds = [...new Set(parsed.flatMap((p) => (p.op.entity === 'signoff' && 'f' in p && p.f ? [p.f.testId as string] : [])))];
 	const signing = await signOffFacts(ctx.actor, signIds, ctx.t);
+	const circuitJobs = [...signing].filter(([id]) => !tests.has(id)).map(([, s]) => s.jobId);
+	const jobs = await loadJobs([...new Set([...ids('jobId'), ...circuitJobs, ...[...photos.values()].map((p) => p.jobId)])], ctx);
 	return mapInSlices(parsed, (p): Prepared | PushResult => {
 		if (!('f' in p) || !p.f) return reject(p.op, 'invalid', (p as { error: string }).error);
 		const { op, f } = p;
 		/** The seq (set when the rows are sent), the `BASE` columns, then the table's own. */
 		const row = (jobId: unknown, testId: unknown, ...rest: unknown[]) => [0, ctx.actor.workshopId, op.entityId, op.opId, ctx.actor.userId, ctx.actor.deviceId, deviceDateTime(op.deviceTime), jobId, testId, ...rest];
+		if (op.entity === 'signoff' && !tests.has(f.testId as string) && signing.has(f.testId as string)) {
+			// A decision on an apprentice's circuit test: the same rules, no test summary.
+			const facts = signing.get(f.testId as string)!;
+			const decision = f.decision as SignOffDecision;
+			const refusal = refuseAppend(ctx.actor, op.entity, jobs.get(facts.jobId), { ...facts, decision });
+			if (refusal) return reject(op, refusal.reason, refusal.message);
+			facts.signOff = decision === 'signed' ? 'signed' : 'sent_back';
+			return { op, table: 'signoffs', row: row(facts.jobId, f.testId, f.mode, decision, f.note ?? null), same: '' };
+		}
 		if (op.entity === 'reading' || op.entity === 'signoff') {
 			const found = tests.get(f.testId as string);
 			const test = found && !Number(found.deleted) ? found : undefined;
@@ -232,7 +243,7 @@ async function prepare(ops: Op[], ctx: Ctx): Promise<(Prepared | PushResult)[]> 
 			return {
 				op,
 				table: 'circuit_tests',
-				row: row(jobId, testId, note, f.kind, JSON.stringify(f.inputs), device ? JSON.stringify(device) : null, JSON.stringify(server), mismatch ? 1 : 0, server.verdict),
+				row: row(jobId, testId, note, f.kind, JSON.stringify(f.inputs), device ? JSON.stringify(device) : null, JSON.stringify(server), mismatch ? 1 : 0, server.verdict, ctx.actor.role === 'apprentice' ? 1 : 0),
 				same: ''
 			};
 		}

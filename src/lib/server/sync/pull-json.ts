@@ -49,7 +49,7 @@ const DATE_TYPES = new Set(['DATETIME', 'TIMESTAMP', 'DATETIME2', 'TIMESTAMP2'])
 function cellOf(col: RawColumn): ((v: unknown) => string) | null {
 	if (HIDDEN_COLUMNS.has(col.name)) return null;
 	if (JSON_COLUMNS.has(col.name)) return storedJson;
-	if (col.name === 'mismatch') return bool;
+	if (col.name === 'mismatch' || col.name === 'needs_signoff') return bool;
 	if (col.name === 'range_unresolved') return boolOrNull;
 	if (col.name === 'gap_mm') return num;
 	if (DATE_TYPES.has(col.type)) return iso;

@@ -5,8 +5,9 @@ import { actorOf } from '$lib/server/auth/types';
 import { parseOverviewQuery, readOverview } from '$lib/server/services/overview';
 
 /**
- * GET /api/overview?from=&to=&part=&meter=&role=&partsSort=&metersSort=&peopleSort= →
- * `{ from, to, bucket, parts, meters, leadZero, people }` (leads and owners).
+ * GET /api/overview?from=&to=&part=&meter=&role=&partsSort=&metersSort=&peopleSort=&circuitsSort= →
+ * `{ from, to, bucket, parts, meters, leadZero, people, circuits }` (leads and owners; `circuits`:
+ * battery, charging and other circuit tests per kind).
  */
 export const GET = api(
 	async ({ url }, user) =>

@@ -1,11 +1,12 @@
 import { PAPERS, type Paper } from '$lib/report/types';
-import { renderReportPdf } from '$lib/server/reports/pdf';
+import { printPhotoLoader, renderReportPdf } from '$lib/server/reports/pdf';
+import { printPhoto } from '$lib/server/photos/service';
 import { openReport } from '$lib/server/reports/service';
 import { goneMessage } from '../gone';
 
 /**
  * The report's PDF: the exact file that was sent, or the same words drawn on the other
- * paper size when `?paper=` asks for it. 410 with a kind sentence once withdrawn or expired.
+ * paper size when `?paper=` asks for it (photos at print size from the originals still kept). 410 with a kind sentence once withdrawn or expired.
  */
 export async function GET({ params, url }) {
 	const r = await openReport(params.token);
@@ -16,7 +17,10 @@ export async function GET({ params, url }) {
 	}
 	const asked = url.searchParams.get('paper');
 	const paper = (PAPERS as readonly string[]).includes(asked ?? '') ? (asked as Paper) : r.paper;
-	const pdf = paper === r.paper ? r.pdf : await renderReportPdf(r.doc, { paper });
+	const pdf =
+		paper === r.paper
+			? r.pdf
+			: await renderReportPdf(r.doc, { paper, loadPhoto: printPhotoLoader(r.workshopId, printPhoto) });
 	return new Response(new Uint8Array(pdf), {
 		headers: {
 			'content-type': 'application/pdf',

@@ -6,7 +6,8 @@ import { decideTest } from '$lib/server/services/signoffs';
 
 /**
  * POST /api/tests/:id/signoff `{ decision?: 'signed' | 'sent_back', note?, mode?: 'remote' |
- * 'witnessed' }` → 201 `{ signoff }`. Leads and owners, on a test an apprentice did; the
+ * 'witnessed' }` → 201 `{ signoff }`. Leads and owners, on a test or a circuit test (battery,
+ * charging, …; `:id` the circuit test's id) an apprentice did; the
  * signer is the signed-in user. A send-back needs its note (400); 403 with the reason.
  */
 export const POST = api(async ({ params, request }, user) => {
