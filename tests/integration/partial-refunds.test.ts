@@ -118,8 +118,8 @@ beforeAll(async () => {
 
 describe('partial refunds of a card payment', () => {
 	it('adds several partial refunds up to the whole, refuses more, and shows refunded and kept amounts', async () => {
-		const { job, paymentId, link } = await paidCard();
 		const before = await paymentTotals(ws.workshop.id);
+		const { job, paymentId, link } = await paidCard();
 
 		// Only leads and owners (the rulebook), only in the payment's own workshop.
 		expect((await refund(tech, paymentId, '10.00')).status).toBe(403);
