@@ -115,6 +115,27 @@ describe('quote, approval and payment', () => {
 			expect(await axeViolations(lead.page)).toEqual([]);
 			await lead.page.goto(`${base}/jobs/${JOB}/money`);
 			expect(await axeViolations(lead.page)).toEqual([]);
+
+			// A partial refund: more than was paid is refused with the field named, then
+			// 40.88 of 140.88 is refunded and 100.00 is kept (worked by hand).
+			const amount = lead.page.getByLabel(/Amount to refund/);
+			await amount.fill('200');
+			await lead.page.getByRole('button', { name: 'Refund', exact: true }).click();
+			await lead.page.getByText('At most £140.88: that is what is left to refund').waitFor();
+			expect(await amount.getAttribute('aria-invalid')).toBe('true');
+			expect(await axeViolations(lead.page)).toEqual([]);
+			await amount.fill('40.88');
+			await lead.page.getByRole('button', { name: 'Refund', exact: true }).click();
+			await lead.page.getByTestId('refund-done').waitFor();
+			await expect.poll(() => lead.page.getByTestId('payment-refunded').first().textContent()).toContain('Refunded £40.88 · kept £100.00');
+			expect(await axeViolations(lead.page)).toEqual([]);
+			await shot(lead.page, 'quote-6-refund');
+			await lead.page.goto(`${base}/payments`);
+			await lead.page.getByTestId('list-count').waitFor();
+			expect(await lead.page.getByTestId('paid-total').textContent()).toContain('£100.00');
+			expect(await lead.page.getByTestId('payment-cards').textContent()).toContain('Refunded £40.88');
+			expect(await axeViolations(lead.page)).toEqual([]);
+
 			await lead.page.goto(`${base}/pricing`);
 			expect(await axeViolations(lead.page)).toEqual([]);
 			await shot(lead.page, 'quote-5-pricing');
