@@ -14,6 +14,7 @@ import { openPhone, shot, signInAs } from './browser';
 
 const base = inject('baseURL');
 let JOB = '';
+let LATE_JOB = '';
 let tech: Awaited<ReturnType<typeof openPhone>>;
 let customer: Awaited<ReturnType<typeof openPhone>>;
 
@@ -26,6 +27,14 @@ beforeAll(async () => {
 		{ complaint: 'Misfire on the driveway, coil suspected', assigneeId: DEMO_USERS[2].id, status: 'testing' }
 	);
 	JOB = job.id as string;
+	// A second job whose quote's link ran out a day ago (made 8 days back, open 7).
+	const { quotes } = await import('../../src/lib/server/services/quotes');
+	const { makeQuoteLink } = await import('../../src/lib/server/quotes/links');
+	const lead = { userId: DEMO_USERS[1].id, workshopId: DEMO_WORKSHOP.id, role: 'lead' as const, deviceId: 'e2e' };
+	const late = await jobs.create(lead, { complaint: 'Quote link ran out, coil still to fit', assigneeId: DEMO_USERS[2].id, status: 'testing' });
+	LATE_JOB = late.id as string;
+	const q = (await quotes.create(lead, { jobId: LATE_JOB, request: { diagnostic: true } })) as { id: string };
+	await makeQuoteLink(lead, q.id, base, {}, new Date(Date.now() - 8 * 86_400_000));
 	await closeDb();
 	tech = await openPhone();
 	customer = await openPhone();
@@ -143,5 +152,21 @@ describe('quote, approval and payment', () => {
 		} finally {
 			await lead.close();
 		}
+	});
+
+	it('the technician’s phone says a link ran out and shows a fresh one', async () => {
+		const { page } = tech;
+		await signInAs(tech, base, 'tech@tallowbridge.example');
+		await page.getByTestId('job-list').getByText('Quote link ran out, coil still to fit').waitFor({ timeout: 20_000 });
+		await page.goto(`${base}/field/job/${LATE_JOB}/quote`);
+		await page.getByTestId('phone-link-expired').waitFor({ timeout: 20_000 });
+		expect(await page.getByTestId('phone-link-expired').textContent()).toContain('The approval link has expired');
+		expect(await axeViolations(page)).toEqual([]);
+		await page.getByRole('button', { name: 'Show a fresh link' }).click();
+		await page.getByTestId('quote-qr').waitFor({ timeout: 20_000 });
+		expect(await page.getByTestId('phone-link-expired').count()).toBe(0);
+		const fresh = (await page.getByTestId('quote-url').textContent())!.trim();
+		expect((await fetch(fresh)).status).toBe(200);
+		await shot(page, 'quote-7-fresh-link');
 	});
 });
