@@ -214,6 +214,35 @@ describe('partial refunds of a card payment', () => {
 	});
 });
 
+describe('a refund the provider refuses', () => {
+	it('says so, records it as not made, and changes no total', async () => {
+		const { paymentId, ref } = await paidCard();
+		await fake('/_fake/hold', { hold: true });
+		try {
+			// 150.00 (15000) refunded at the provider while its webhook is held: the app still
+			// believes 156.29 is left, the provider only 15629 − 15000 = 629 (6.29).
+			expect((await providerRefund({ payment_intent: ref, amount: '15000' })).status).toBe(200);
+			const r = await refund(lead, paymentId, '10.00');
+			expect(r.status).toBe(502);
+			expect((await r.json()).error.message).toMatch(/^The card provider did not refund it: Refund amount \(£10\.00\) is greater than unrefunded amount on charge \(£6\.29\)/);
+		} finally {
+			await fake('/_fake/hold', { hold: false });
+		}
+		expect(await row(paymentId)).toMatchObject({ state: 'paid', refunded: 0 });
+		const [made] = await db().query<{ state: string; amount_minor: number | string }>('SELECT state, amount_minor FROM payment_refunds WHERE payment_id = ?', {
+			replacements: [paymentId],
+			type: QueryTypes.SELECT
+		});
+		expect([made.state, Number(made.amount_minor)]).toEqual(['failed', 1000]);
+		// The held event arrives: 15000 refunded; 629 is left, and 6.29 is then accepted in full.
+		const held = (await events()).filter((e) => e.type === 'charge.refunded').at(-1)!;
+		expect((await fake('/_fake/deliver', { id: held.id })).status).toBe(200);
+		expect(await row(paymentId)).toMatchObject({ state: 'paid', refunded: 15000 });
+		expect((await refund(lead, paymentId, '6.29')).status).toBe(201);
+		expect(await row(paymentId)).toMatchObject({ state: 'refunded', refunded: 15629 });
+	});
+});
+
 describe('the fake provider’s refund endpoint', () => {
 	it('refunds in parts, defaults to what is left, refuses more, and replays an idempotent request', async () => {
 		const { ref } = await paidCard();
