@@ -10,7 +10,11 @@
  *   POST /v1/checkout/sessions               a hosted payment page for one amount
  *   GET  /v1/checkout/sessions/:id           the session
  *   POST /v1/checkout/sessions/:id/expire    close it unpaid (sends checkout.session.expired)
- *   POST /v1/refunds                         refund a paid session's payment (sends charge.refunded)
+ *   POST /v1/refunds                         refund part or all of what is left of a paid session's
+ *                                            payment (`amount` in minor units, default all that is
+ *                                            left; over-refund and a refunded charge are errors;
+ *                                            `Idempotency-Key` replays the first answer); sends
+ *                                            charge.refunded with the cumulative amount_refunded
  * The hosted page, on the fake's own origin (so card numbers never reach the app):
  *   GET  /pay/:id    the amount and a card form
  *   POST /pay/:id    card=4242 4242 4242 4242 pays (checkout.session.completed, then back to
@@ -48,6 +52,9 @@ const sessions = new Map();
 /** @type {{ id: string, type: string, body: string, status: number | null }[]} */
 const events = [];
 let hold = false;
+/** Answers kept by idempotency key (a repeated request gets the first answer again). */
+/** @type {Map<string, { body: string, status: number, answer: unknown }>} */
+const idempotent = new Map();
 
 const rid = (prefix) => `${prefix}_${randomBytes(12).toString('hex')}`;
 const now = () => Math.floor(Date.now() / 1000);
@@ -146,7 +153,7 @@ function sessionFrom(p) {
 }
 
 const publicSession = (s) => {
-	const { description: _d, amount_refunded: _r, ...rest } = s;
+	const { description: _d, amount_refunded: _r, charge: _c, ...rest } = s;
 	return rest;
 };
 const intentOf = (s, extra = {}) => ({
@@ -185,25 +192,60 @@ const server = http.createServer(async (req, res) => {
 				}
 			}
 			if (req.method === 'POST' && url.pathname === '/v1/refunds') {
+				// As the provider documents refunds: by payment_intent (or charge); `amount` in
+				// minor units, defaulting to all that is left; several partial refunds until the
+				// whole is refunded, then an error; never more than what is left. The charge keeps
+				// the cumulative `amount_refunded` and `refunded` (true once in full).
+				const key = req.headers['idempotency-key'];
+				const seen = typeof key === 'string' ? idempotent.get(key) : undefined;
+				if (seen) {
+					if (seen.body !== body) return apiError(res, 400, 'Keys for idempotent requests can only be used with the same parameters they were first used with.', 'idempotency_error');
+					return json(res, seen.status, seen.answer);
+				}
+				const answer = async (status, out) => {
+					if (typeof key === 'string') idempotent.set(key, { body, status, answer: out });
+					return json(res, status, out);
+				};
 				const pi = p.get('payment_intent');
-				const s = [...sessions.values()].find((x) => x.payment_intent === pi);
-				if (!s || s.payment_status !== 'paid') return apiError(res, 400, 'This payment cannot be refunded');
-				const amount = p.get('amount') ? Number(p.get('amount')) : s.amount_total - s.amount_refunded;
-				if (!Number.isSafeInteger(amount) || amount < 1 || amount > s.amount_total - s.amount_refunded)
-					return apiError(res, 400, 'Refund amount is more than what is left to refund');
+				const ch = p.get('charge');
+				const s = [...sessions.values()].find((x) => (pi && x.payment_intent === pi) || (ch && x.charge === ch));
+				if (!s) return answer(404, { error: { type: 'invalid_request_error', code: 'resource_missing', message: `No such payment_intent: '${pi ?? ch}'` } });
+				if (s.payment_status !== 'paid') return answer(400, { error: { type: 'invalid_request_error', message: 'This PaymentIntent does not have a successful charge to refund.' } });
+				const left = s.amount_total - s.amount_refunded;
+				if (left <= 0) return answer(400, { error: { type: 'invalid_request_error', code: 'charge_already_refunded', message: `Charge ${s.charge} has already been refunded.` } });
+				const asked = p.get('amount');
+				const amount = asked === null ? left : /^\d+$/.test(asked) ? Number(asked) : NaN;
+				if (!Number.isSafeInteger(amount) || amount < 1)
+					return answer(400, { error: { type: 'invalid_request_error', code: 'parameter_invalid_integer', param: 'amount', message: 'Invalid positive integer' } });
+				if (amount > left)
+					return answer(400, {
+						error: {
+							type: 'invalid_request_error',
+							code: 'amount_too_large',
+							param: 'amount',
+							message: `Refund amount (${money(amount, s.currency)}) is greater than unrefunded amount on charge (${money(left, s.currency)})`
+						}
+					});
 				s.amount_refunded += amount;
-				const refund = { id: rid('re'), object: 'refund', amount, currency: s.currency, payment_intent: pi, status: 'succeeded', metadata: s.metadata };
+				const metadata = {};
+				for (const [k, v] of p) {
+					const m = /^metadata\[(\w+)\]$/.exec(k);
+					if (m) metadata[m[1]] = v;
+				}
+				const refund = { id: rid('re'), object: 'refund', amount, charge: s.charge, created: now(), currency: s.currency, payment_intent: s.payment_intent, status: 'succeeded', metadata };
 				await emit('charge.refunded', {
-					id: rid('ch'),
+					id: s.charge,
 					object: 'charge',
 					amount: s.amount_total,
+					amount_captured: s.amount_total,
 					amount_refunded: s.amount_refunded,
 					currency: s.currency,
-					payment_intent: pi,
+					paid: true,
+					payment_intent: s.payment_intent,
 					refunded: s.amount_refunded === s.amount_total,
 					metadata: s.metadata
 				});
-				return json(res, 200, refund);
+				return answer(200, refund);
 			}
 			return apiError(res, 404, 'Unrecognized request URL');
 		}
@@ -223,6 +265,7 @@ const server = http.createServer(async (req, res) => {
 			if (card === GOOD) {
 				s.payment_status = 'paid';
 				s.status = 'complete';
+				s.charge = rid('ch');
 				await emit('checkout.session.completed', publicSession(s));
 				res.writeHead(303, { location: s.success_url });
 				return res.end();

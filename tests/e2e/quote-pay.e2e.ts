@@ -14,6 +14,7 @@ import { openPhone, shot, signInAs } from './browser';
 
 const base = inject('baseURL');
 let JOB = '';
+let LATE_JOB = '';
 let tech: Awaited<ReturnType<typeof openPhone>>;
 let customer: Awaited<ReturnType<typeof openPhone>>;
 
@@ -26,6 +27,14 @@ beforeAll(async () => {
 		{ complaint: 'Misfire on the driveway, coil suspected', assigneeId: DEMO_USERS[2].id, status: 'testing' }
 	);
 	JOB = job.id as string;
+	// A second job whose quote's link ran out a day ago (made 8 days back, open 7).
+	const { quotes } = await import('../../src/lib/server/services/quotes');
+	const { makeQuoteLink } = await import('../../src/lib/server/quotes/links');
+	const lead = { userId: DEMO_USERS[1].id, workshopId: DEMO_WORKSHOP.id, role: 'lead' as const, deviceId: 'e2e' };
+	const late = await jobs.create(lead, { complaint: 'Quote link ran out, coil still to fit', assigneeId: DEMO_USERS[2].id, status: 'testing' });
+	LATE_JOB = late.id as string;
+	const q = (await quotes.create(lead, { jobId: LATE_JOB, request: { diagnostic: true } })) as { id: string };
+	await makeQuoteLink(lead, q.id, base, {}, new Date(Date.now() - 8 * 86_400_000));
 	await closeDb();
 	tech = await openPhone();
 	customer = await openPhone();
@@ -115,6 +124,27 @@ describe('quote, approval and payment', () => {
 			expect(await axeViolations(lead.page)).toEqual([]);
 			await lead.page.goto(`${base}/jobs/${JOB}/money`);
 			expect(await axeViolations(lead.page)).toEqual([]);
+
+			// A partial refund: more than was paid is refused with the field named, then
+			// 40.88 of 140.88 is refunded and 100.00 is kept (worked by hand).
+			const amount = lead.page.getByLabel(/Amount to refund/);
+			await amount.fill('200');
+			await lead.page.getByRole('button', { name: 'Refund', exact: true }).click();
+			await lead.page.getByText('At most £140.88: that is what is left to refund').waitFor();
+			expect(await amount.getAttribute('aria-invalid')).toBe('true');
+			expect(await axeViolations(lead.page)).toEqual([]);
+			await amount.fill('40.88');
+			await lead.page.getByRole('button', { name: 'Refund', exact: true }).click();
+			await lead.page.getByTestId('refund-done').waitFor();
+			await expect.poll(() => lead.page.getByTestId('payment-refunded').first().textContent()).toContain('Refunded £40.88 · kept £100.00');
+			expect(await axeViolations(lead.page)).toEqual([]);
+			await shot(lead.page, 'quote-6-refund');
+			await lead.page.goto(`${base}/payments`);
+			await lead.page.getByTestId('list-count').waitFor();
+			expect(await lead.page.getByTestId('paid-total').textContent()).toContain('£100.00');
+			expect(await lead.page.getByTestId('payment-cards').textContent()).toContain('Refunded £40.88');
+			expect(await axeViolations(lead.page)).toEqual([]);
+
 			await lead.page.goto(`${base}/pricing`);
 			expect(await axeViolations(lead.page)).toEqual([]);
 			await shot(lead.page, 'quote-5-pricing');
@@ -122,5 +152,21 @@ describe('quote, approval and payment', () => {
 		} finally {
 			await lead.close();
 		}
+	});
+
+	it('the technician’s phone says a link ran out and shows a fresh one', async () => {
+		const { page } = tech;
+		await signInAs(tech, base, 'tech@tallowbridge.example');
+		await page.getByTestId('job-list').getByText('Quote link ran out, coil still to fit').waitFor({ timeout: 20_000 });
+		await page.goto(`${base}/field/job/${LATE_JOB}/quote`);
+		await page.getByTestId('phone-link-expired').waitFor({ timeout: 20_000 });
+		expect(await page.getByTestId('phone-link-expired').textContent()).toContain('The approval link has expired');
+		expect(await axeViolations(page)).toEqual([]);
+		await page.getByRole('button', { name: 'Show a fresh link' }).click();
+		await page.getByTestId('quote-qr').waitFor({ timeout: 20_000 });
+		expect(await page.getByTestId('phone-link-expired').count()).toBe(0);
+		const fresh = (await page.getByTestId('quote-url').textContent())!.trim();
+		expect((await fetch(fresh)).status).toBe(200);
+		await shot(page, 'quote-7-fresh-link');
 	});
 });

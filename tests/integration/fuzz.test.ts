@@ -207,6 +207,8 @@ const routes = (): Route[] => [
 	{ kind: 'api', method: 'GET', path: withQuery(fc.constant('/api/pricing')) },
 	{ kind: 'api', method: 'POST', path: fc.constant('/api/pay/webhook'), body: bodyArb() },
 	{ kind: 'api', method: 'POST', path: p('/api/quotes/:id/link', 'job'), body: bodyArb() },
+	{ kind: 'api', method: 'GET', path: withQuery(fc.oneof(fc.constant('/api/payments'), p('/api/quotes/:id/link', 'job'))) },
+	{ kind: 'api', method: 'POST', path: p('/api/payments/:id/refund', 'job'), body: bodyArb(fc.record({ amount: fc.oneof(fc.constantFrom('1', '0.01', '-1', '£2.50', '1e3', ''), valueArb), reason: valueArb }, { requiredKeys: [] })) },
 	{ kind: 'form', method: 'POST', path: fc.oneof(fc.constantFrom('/pricing?/settings', '/pricing?/add', '/pricing?/remove', '/q/AAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAA?/answer', '/q/x?/pay'), p('/jobs/:id/money?/link', 'job'), p('/jobs/:id/money?/verbal', 'job'), p('/jobs/:id/money?/card', 'job'), p('/jobs/:id/money?/manual', 'job'), p('/jobs/:id/money?/refund', 'job')) },
 	{ kind: 'page', method: 'GET', path: withQuery(fc.oneof(p('/jobs/:id/money', 'job'), fc.constantFrom('/payments', '/pricing', '/q/AAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAA', '/q/short'))) },
 	{ kind: 'api', method: 'DELETE', path: fc.oneof(p('/api/jobs/:id', 'job'), fc.constant('/api/customers')) },

@@ -289,13 +289,14 @@ describe('payments through the fake provider', () => {
 		const p = await askCardPayment(ws.users.technician.actor, job.id, 'quote', urls);
 		await payOnFake(p.url, GOOD);
 		expect(await waitFor(() => paymentState(p.paymentId), 'paid')).toBe('paid');
-		await expect(refundPayment(ws.users.technician.actor, p.paymentId)).rejects.toMatchObject({ status: 403 });
-		await expect(refundPayment(other.users.lead.actor, p.paymentId)).rejects.toMatchObject({ status: 404 });
-		await refundPayment(ws.users.lead.actor, p.paymentId);
+		// The whole 156.29 (15629): refunded in full.
+		await expect(refundPayment(ws.users.technician.actor, p.paymentId, { amount: '156.29' })).rejects.toMatchObject({ status: 403 });
+		await expect(refundPayment(other.users.lead.actor, p.paymentId, { amount: '156.29' })).rejects.toMatchObject({ status: 404 });
+		await refundPayment(ws.users.lead.actor, p.paymentId, { amount: '156.29' });
 		expect(await paymentState(p.paymentId)).toBe('refunded');
 		const ev = await lastEvent('charge.refunded');
 		expect(await waitFor(async () => (await fake('/_fake/events')).find((e: { id: string }) => e.id === ev.id)?.status, 200)).toBe(200);
-		await expect(refundPayment(ws.users.owner.actor, p.paymentId)).rejects.toMatchObject({ status: 403 });
+		await expect(refundPayment(ws.users.owner.actor, p.paymentId, { amount: '0.01' })).rejects.toMatchObject({ status: 403 });
 	});
 
 	it('records cash by hand for the diagnostic fee with tax, and counts paid and outstanding totals', async () => {

@@ -21,6 +21,7 @@ import { components, sheets } from '../../src/lib/server/services/components';
 import * as customers from '../../src/lib/server/services/customers';
 import { jobs } from '../../src/lib/server/services/jobs';
 import { savePricing } from '../../src/lib/server/quotes/pricing';
+import { recordManualPayment } from '../../src/lib/server/payments/service';
 import { answerQuote, quotes } from '../../src/lib/server/services/quotes';
 import { tests } from '../../src/lib/server/services/tests';
 import { vehicles } from '../../src/lib/server/services/vehicles';
@@ -459,6 +460,26 @@ const ACTIONS: Action[] = [
 		},
 		sync: (t) => op('quote', 'delete', t.id, {}, t.version),
 		landed: async (t) => (await rowOf('quotes', t.id)).deleted_at !== null
+	},
+
+	// ——— Refunds: leads and owners only (the diagnostic fee 40.00 + 20 % = 48.00, cash) ———
+	{
+		name: 'refund part of a payment on one’s own job',
+		allowed: LEADS,
+		setup: async (r) => {
+			const j = await job(ownWorker(r).id);
+			const p = await recordManualPayment(leadA, j.id, { purpose: 'diagnostic', method: 'cash' });
+			return { job: j, paymentId: p.paymentId };
+		},
+		form: (t) => ({ path: `/jobs/${t.job.id}/money?/refund`, fields: { paymentId: t.paymentId, amount: '1.00', reason: '' } }),
+		api: (t) => ({ method: 'POST', path: `/api/payments/${t.paymentId}/refund`, body: { amount: '1.00' } }),
+		landed: async (t) => {
+			const [row] = await db().query<{ n: number }>('SELECT COUNT(*) AS n FROM payment_refunds WHERE payment_id = ?', {
+				replacements: [t.paymentId],
+				type: QueryTypes.SELECT
+			});
+			return Number(row.n) > 0;
+		}
 	},
 
 	// ——— Photo marks (remove; for the customer): the person who took it, or a lead ———

@@ -4,7 +4,7 @@
  * demo prices), and the request it sends (names, never prices).
  */
 import { describe, expect, it } from 'vitest';
-import { linesOf, requestOf, suggestedParts, totalsOf, type PhonePricing } from '../../../src/routes/(app)/field/job/[id]/quote/quote-form';
+import { linesOf, linkRanOut, requestOf, suggestedParts, totalsOf, type PhonePricing } from '../../../src/routes/(app)/field/job/[id]/quote/quote-form';
 
 const P: PhonePricing = {
 	pricing: { currency: 'GBP', taxRateBp: 2000, labourRateMinor: 6800, diagnosticFeeMinor: 4500 },
@@ -39,5 +39,18 @@ describe('the phone’s quote form', () => {
 		const r = requestOf({ parts: ['coil'], labourItemId: 'fit', hoursMilli: 300, diagnostic: true }, null);
 		expect(r).toEqual({ parts: [{ itemId: 'coil', quantityMilli: 1000 }], labour: [{ itemId: 'fit', hoursMilli: 300 }], diagnostic: true, testId: null });
 		expect(JSON.stringify(r)).not.toMatch(/Minor|price/i);
+	});
+
+	it('tells that a sent quote’s link ran out from the expiry the phone kept, offline', () => {
+		// The link was made 2026-11-25 10:00 UTC and is open 7 days: until 2026-12-02 10:00 UTC.
+		const kept = { quoteId: 'q1', expiresAt: '2026-12-02T10:00:00.000Z' };
+		const sent = { id: 'q1', state: 'sent' };
+		expect(linkRanOut(kept, sent, Date.parse('2026-12-02T09:59:59Z'))).toBe(false);
+		expect(linkRanOut(kept, sent, Date.parse('2026-12-02T10:00:00Z'))).toBe(true);
+		// Answered or replaced quotes, another quote's link, or none kept: nothing to say.
+		expect(linkRanOut(kept, { id: 'q1', state: 'approved' }, Date.parse('2026-12-09T00:00:00Z'))).toBe(false);
+		expect(linkRanOut(kept, { id: 'q2', state: 'sent' }, Date.parse('2026-12-09T00:00:00Z'))).toBe(false);
+		expect(linkRanOut(null, sent, Date.parse('2026-12-09T00:00:00Z'))).toBe(false);
+		expect(linkRanOut({ quoteId: 'q1', expiresAt: 'not a date' }, sent, Date.parse('2026-12-09T00:00:00Z'))).toBe(false);
 	});
 });

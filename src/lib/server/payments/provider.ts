@@ -39,7 +39,11 @@ export type PayEvent = {
 
 export interface PaymentProvider {
 	createCheckout(input: CheckoutInput): Promise<{ sessionId: string; url: string; paymentRef: string | null }>;
-	refund(paymentRef: string, amountMinor: number): Promise<{ refundId: string }>;
+	/**
+	 * Refund `amountMinor` (part or all of what is left) of a paid payment; `key` is our own
+	 * refund's id, sent as the idempotency key so a retried request never refunds twice.
+	 */
+	refund(paymentRef: string, amountMinor: number, key: string): Promise<{ refundId: string; status: string }>;
 	/** Check the signature and read the event; throws `BadSignatureError` otherwise. */
 	readWebhook(rawBody: string, signature: string | null): PayEvent;
 }
@@ -88,9 +92,12 @@ export const stripeProvider: PaymentProvider = {
 		const pi = typeof s.payment_intent === 'string' ? s.payment_intent : (s.payment_intent?.id ?? null);
 		return { sessionId: s.id, url: s.url, paymentRef: pi };
 	},
-	async refund(paymentRef, amountMinor) {
-		const r = await client().refunds.create({ payment_intent: paymentRef, amount: amountMinor }, { idempotencyKey: `refund-${paymentRef}-${amountMinor}` });
-		return { refundId: r.id };
+	async refund(paymentRef, amountMinor, key) {
+		const r = await client().refunds.create(
+			{ payment_intent: paymentRef, amount: amountMinor, metadata: { refundId: key } },
+			{ idempotencyKey: `refund-${key}` }
+		);
+		return { refundId: r.id, status: r.status ?? 'succeeded' };
 	},
 	readWebhook(rawBody, signature) {
 		let ev: Stripe.Event;

@@ -14,7 +14,9 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import { v7 as uuidv7 } from 'uuid';
 import { z } from 'zod';
-import { formatMoney, quoteTotals, type Currency } from '../../money';
+import { formatMoney, parseAmount, quoteTotals, sum, toDecimal, type Currency } from '../../money';
+import { pageParam, pageSizeParam, sortParam } from '../../schemas/common';
+import { inOrder, orderBy, pageOfIds, Where } from '../services/list-sql';
 import { isLead } from '../../roles';
 import type { Actor } from '../auth/types';
 import { db } from '../db';
@@ -22,7 +24,7 @@ import { writeAudit } from '../db/feed';
 import { Job, Quote, User } from '../db/models';
 import { AppError, ForbiddenError, NotFoundError, ValidationError } from '../errors';
 import { readPricing } from '../quotes/pricing';
-import { seesJob } from '../services/rules';
+import { refuseRefund, seesJob } from '../services/rules';
 import { BadSignatureError, paymentsConfigured, provider, type PayEvent } from './provider';
 
 export type PaymentState = 'pending' | 'paid' | 'failed' | 'refunded' | 'expired';
@@ -212,26 +214,117 @@ async function moveState(t: Transaction, actor: Actor, p: PaymentRow, to: Paymen
 	await writeAudit(t, actor, 'payment', p.id, 'update', [{ field: 'state', old: p.state, new: to }], null);
 }
 
-/** Refund a paid payment in full (leads and owners): card through the provider, cash and transfers recorded. */
-export async function refundPayment(actor: Actor, paymentId: string) {
-	if (!isLead(actor)) throw new ForbiddenError('Only a workshop lead can refund a payment');
+const refundInput = z.object({
+	amount: z.string({ error: 'Type the amount to refund' }).trim().min(1, 'Type the amount to refund').max(20, 'Type the amount to refund, e.g. 12.50'),
+	reason: z.string().trim().max(300, 'At most 300 characters').optional().default('')
+});
+
+/** What is left to refund: the paid amount less what is refunded or being refunded. */
+async function leftOf(t: Transaction, p: PaymentRow): Promise<number> {
+	const [r] = await db().query<{ done: string | number | null; pending: string | number | null }>(
+		`SELECT SUM(CASE WHEN state = 'done' THEN amount_minor ELSE 0 END) AS done, SUM(CASE WHEN state = 'pending' THEN amount_minor ELSE 0 END) AS pending
+		 FROM payment_refunds WHERE payment_id = ?`,
+		{ replacements: [p.id], type: QueryTypes.SELECT, transaction: t }
+	);
+	const refunded = Math.max(Number(p.refunded_minor), Number(r?.done ?? 0));
+	return Number(p.amount_minor) - refunded - Number(r?.pending ?? 0);
+}
+
+/**
+ * Move a payment's refunded total forward to `total` (never back), and to "refunded" when
+ * nothing is left; every change is an audit row.
+ */
+async function refundedUpTo(t: Transaction, actor: Actor, p: PaymentRow, total: number) {
+	const before = Number(p.refunded_minor);
+	if (total <= before) return false;
+	const full = total >= Number(p.amount_minor);
+	await db().query(
+		`UPDATE payments SET refunded_minor = ?, version = version + 1, updated_at = UTC_TIMESTAMP(3)${full ? ", state = 'refunded'" : ''} WHERE id = ?`,
+		{ replacements: [total, p.id], transaction: t, type: QueryTypes.UPDATE }
+	);
+	await writeAudit(t, actor, 'payment', p.id, 'refund', [{ field: 'refundedMinor', old: before, new: total }], null);
+	if (full && p.state !== 'refunded') await writeAudit(t, actor, 'payment', p.id, 'update', [{ field: 'state', old: p.state, new: 'refunded' }], null);
+	p.refunded_minor = total;
+	if (full) p.state = 'refunded';
+	return true;
+}
+
+export class RefundFailedError extends AppError {
+	constructor(detail: string) {
+		super(502, 'refund_failed', `The card provider did not refund it: ${detail}. Nothing was refunded; try again later.`);
+	}
+}
+
+/**
+ * Refund part or all of what is left of a paid payment (leads and owners, by the rulebook's
+ * `refuseRefund`): `amount` is typed in the payment's currency ("12.50"), turned into minor
+ * units exactly. A card refund goes through the provider (our refund's id as its idempotency
+ * key); cash and bank transfer refunds are recorded. Several partial refunds may add up to
+ * the whole, never more: the check runs under a lock on the payment and counts refunds still
+ * with the provider.
+ */
+export async function refundPayment(actor: Actor, paymentId: string, input: unknown) {
 	if (!z.uuid().safeParse(paymentId).success) throw new NotFoundError('Payment');
-	const p = await db().transaction(async (t) => {
+	const r = refundInput.safeParse(input);
+	const held = await db().transaction(async (t) => {
 		const row = await lockPayment(t, 'id = ? AND workshop_id = ?', [paymentId, actor.workshopId]);
 		if (!row) throw new NotFoundError('Payment');
-		if (row.state !== 'paid') throw new ForbiddenError('Only a paid payment can be refunded');
-		return row;
+		const job = await Job.findOne({ where: { id: row.job_id, workshopId: actor.workshopId }, transaction: t });
+		if (!job || !seesJob(actor, job)) throw new NotFoundError('Payment');
+		const currency = row.currency as Currency;
+		const left = await leftOf(t, row);
+		if (!r.success) {
+			refuseRefund(actor, { state: row.state, leftMinor: left }, 1, formatMoney(left, currency));
+			throw ValidationError.fromZod(r.error);
+		}
+		const amountMinor = parseAmount(r.data.amount.replace(/^\p{Sc}\s*/u, ''), currency);
+		if (amountMinor === null) {
+			refuseRefund(actor, { state: row.state, leftMinor: left }, 1, formatMoney(left, currency));
+			throw new ValidationError({ amount: `Type the amount in ${currency}, e.g. ${toDecimal(Math.min(left, 1250), currency)}` });
+		}
+		refuseRefund(actor, { state: row.state, leftMinor: left }, amountMinor, formatMoney(left, currency));
+		if (row.method === 'card' && !row.provider_payment) throw new ForbiddenError('The card provider has not confirmed this payment yet');
+		const id = uuidv7();
+		await db().query(
+			`INSERT INTO payment_refunds (id, workshop_id, payment_id, amount_minor, currency, method, state, reason, created_by, created_at, updated_at)
+			 VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, UTC_TIMESTAMP(3), UTC_TIMESTAMP(3))`,
+			{
+				replacements: [id, actor.workshopId, row.id, amountMinor, row.currency, row.method, row.method === 'card' ? 'pending' : 'done', r.data.reason || null, actor.userId],
+				transaction: t,
+				type: QueryTypes.INSERT
+			}
+		);
+		if (row.method !== 'card') await refundedUpTo(t, actor, row, Number(row.refunded_minor) + amountMinor);
+		return { id, row, amountMinor, currency };
 	});
-	const amount = Number(p.amount_minor) - Number(p.refunded_minor);
-	if (p.method === 'card') {
-		if (!p.provider_payment) throw new ForbiddenError('The provider has not confirmed this payment yet');
-		await provider().refund(p.provider_payment, amount);
+	if (held.row.method === 'card') {
+		let made: { refundId: string; status: string };
+		try {
+			made = await provider().refund(held.row.provider_payment!, held.amountMinor, held.id);
+		} catch (e) {
+			const detail = e instanceof Error ? e.message : 'no answer';
+			await db().query(`UPDATE payment_refunds SET state = 'failed', failure = ?, updated_at = UTC_TIMESTAMP(3) WHERE id = ?`, {
+				replacements: [detail.slice(0, 300), held.id],
+				type: QueryTypes.UPDATE
+			});
+			throw new RefundFailedError(detail);
+		}
+		// The provider's own "refunded" event may have arrived first: totals only move forward.
+		await db().transaction(async (t) => {
+			await db().query(`UPDATE payment_refunds SET state = 'done', provider_refund = ?, updated_at = UTC_TIMESTAMP(3) WHERE id = ?`, {
+				replacements: [made.refundId, held.id],
+				transaction: t,
+				type: QueryTypes.UPDATE
+			});
+			const row = await lockPayment(t, 'id = ?', [held.row.id]);
+			const [{ done }] = await db().query<{ done: string | number }>(
+				`SELECT COALESCE(SUM(amount_minor), 0) AS done FROM payment_refunds WHERE payment_id = ? AND state = 'done'`,
+				{ replacements: [held.row.id], type: QueryTypes.SELECT, transaction: t }
+			);
+			if (row) await refundedUpTo(t, actor, row, Number(done));
+		});
 	}
-	// The provider's own "refunded" event finds it already refunded (state only moves forward).
-	await db().transaction(async (t) => {
-		const row = await lockPayment(t, 'id = ?', [p.id]);
-		if (row && RANK[row.state] < RANK.refunded) await moveState(t, actor, row, 'refunded', { refundedMinor: Number(row.amount_minor) });
-	});
+	return { refundId: held.id, amountMinor: held.amountMinor, currency: held.currency };
 }
 
 export type WebhookOutcome = 'applied' | 'duplicate' | 'stale' | 'ignored' | 'mismatch' | 'unknown';
@@ -269,18 +362,26 @@ async function applyEvent(ev: PayEvent, t: Transaction): Promise<{ outcome: Webh
 	if (!p || p.method !== 'card') return { outcome: 'unknown' };
 	const actor = providerActor(p.workshop_id);
 	const to: PaymentState = ev.kind;
-	if (RANK[to] <= RANK[p.state]) return { outcome: 'stale', payment: p };
 	if (to === 'paid' || to === 'refunded') {
 		// Never trust an amount or currency that is not the one we asked for.
-		if (ev.amountMinor !== Number(p.amount_minor) || (ev.currency && ev.currency !== p.currency.toUpperCase())) {
+		const tooMuch = to === 'refunded' && (ev.refundedMinor === null || ev.refundedMinor < 0 || ev.refundedMinor > Number(p.amount_minor));
+		if (tooMuch || ev.amountMinor !== Number(p.amount_minor) || (ev.currency && ev.currency !== p.currency.toUpperCase())) {
 			await writeAudit(t, actor, 'payment', p.id, 'mismatch', [{ field: 'amountMinor', old: Number(p.amount_minor), new: ev.amountMinor }], null);
 			return { outcome: 'mismatch', payment: p };
 		}
 	}
-	if (to === 'refunded' && ev.refundedMinor !== Number(p.amount_minor)) return { outcome: 'ignored', payment: p };
+	if (to === 'refunded') {
+		// The provider's figure is the charge's refunded total so far: an older (smaller) one
+		// arriving late changes nothing; a refund implies the payment was paid.
+		if (RANK[p.state] < RANK.paid) {
+			await moveState(t, actor, p, 'paid', { paymentRef: ev.paymentRef });
+			p.state = 'paid';
+		}
+		return { outcome: (await refundedUpTo(t, actor, p, ev.refundedMinor!)) ? 'applied' : 'stale', payment: p };
+	}
+	if (RANK[to] <= RANK[p.state]) return { outcome: 'stale', payment: p };
 	await moveState(t, actor, p, to, {
 		...(to === 'failed' ? { failure: ev.failure } : {}),
-		...(to === 'refunded' ? { refundedMinor: ev.refundedMinor ?? 0 } : {}),
 		paymentRef: ev.paymentRef
 	});
 	return { outcome: 'applied', payment: p };
@@ -303,22 +404,33 @@ export type PaymentView = {
 	note: string | null;
 	payUrl: string | null;
 	history: { state: string; at: Date; by: string }[];
+	/** Refunded so far and what is left, in minor units and as people read them. */
+	refundedMinor: number;
+	refunded: string;
+	leftMinor: number;
+	left: string;
+	refunds: { id: string; amount: string; amountMinor: number; state: 'pending' | 'done' | 'failed'; reason: string | null; failure: string | null; at: Date; by: string }[];
 };
 
 /** A job's payments with who asked or recorded them, when, and every change of state. */
 export async function paymentsOfJob(actor: Actor, jobId: string): Promise<PaymentView[]> {
 	await jobFor(actor, jobId);
 	const rows = await db().query<Record<string, unknown>>(
-		`SELECT id, purpose, method, state, amount_minor, currency, created_at, paid_at, created_by, failure, note, pay_url
+		`SELECT id, purpose, method, state, amount_minor, refunded_minor, currency, created_at, paid_at, created_by, failure, note, pay_url
 		 FROM payments WHERE workshop_id = ? AND job_id = ? ORDER BY created_at DESC`,
 		{ replacements: [actor.workshopId, jobId], type: QueryTypes.SELECT }
 	);
 	if (!rows.length) return [];
+	const refunds = await db().query<Record<string, unknown>>(
+		`SELECT id, payment_id, amount_minor, currency, state, reason, failure, created_by, created_at FROM payment_refunds
+		 WHERE workshop_id = ? AND payment_id IN (?) ORDER BY created_at, id`,
+		{ replacements: [actor.workshopId, rows.map((r) => r.id)], type: QueryTypes.SELECT }
+	);
 	const audit = await db().query<{ entity_id: string; user_id: string | null; device_id: string | null; at: Date; new_value: string | null }>(
 		`SELECT entity_id, user_id, device_id, at, new_value FROM audit_log WHERE workshop_id = ? AND entity = 'payment' AND field = 'state' AND entity_id IN (?) ORDER BY id`,
 		{ replacements: [actor.workshopId, rows.map((r) => r.id)], type: QueryTypes.SELECT }
 	);
-	const userIds = [...new Set([...rows.map((r) => r.created_by), ...audit.map((a) => a.user_id)].filter(Boolean))] as string[];
+	const userIds = [...new Set([...rows.map((r) => r.created_by), ...audit.map((a) => a.user_id), ...refunds.map((f) => f.created_by)].filter(Boolean))] as string[];
 	const users = userIds.length ? await User.findAll({ where: { id: userIds, workshopId: actor.workshopId } }) : [];
 	const name = (id: unknown, device: string | null = null) =>
 		id ? (users.find((u) => u.id === id)?.name ?? 'Former user') : device === 'payment-provider' ? 'Card provider' : 'Customer (by link)';
@@ -338,14 +450,41 @@ export async function paymentsOfJob(actor: Actor, jobId: string): Promise<Paymen
 		payUrl: r.state === 'pending' ? ((r.pay_url as string | null) ?? null) : null,
 		history: audit
 			.filter((a) => a.entity_id === r.id)
-			.map((a) => ({ state: JSON.parse(a.new_value ?? 'null') as string, at: new Date(a.at), by: name(a.user_id, a.device_id) }))
+			.map((a) => ({ state: JSON.parse(a.new_value ?? 'null') as string, at: new Date(a.at), by: name(a.user_id, a.device_id) })),
+		...refundFigures(r),
+		refunds: refunds
+			.filter((f) => f.payment_id === r.id)
+			.map((f) => ({
+				id: f.id as string,
+				amountMinor: Number(f.amount_minor),
+				amount: formatMoney(Number(f.amount_minor), f.currency as Currency),
+				state: f.state as 'pending' | 'done' | 'failed',
+				reason: (f.reason as string | null) ?? null,
+				failure: (f.failure as string | null) ?? null,
+				at: new Date(f.created_at as string),
+				by: name(f.created_by)
+			}))
 	}));
 }
 
-/** Paid and outstanding totals per currency for the overview (approved quotes not yet paid). */
+/** A payment's refunded total and what is left (only money received can be refunded). */
+function refundFigures(r: Record<string, unknown>) {
+	const cur = r.currency as Currency;
+	const refundedMinor = Number(r.refunded_minor ?? 0);
+	const received = r.state === 'paid' || r.state === 'refunded';
+	const leftMinor = received ? Number(r.amount_minor) - refundedMinor : 0;
+	return { refundedMinor, refunded: formatMoney(refundedMinor, cur), leftMinor, left: formatMoney(leftMinor, cur) };
+}
+
+/**
+ * Totals per currency for the overview and the payments list: money received (paid, then
+ * perhaps refunded), refunded, and kept (received less refunded); and approved quotes not
+ * paid yet.
+ */
 export async function paymentTotals(workshopId: string) {
-	const paid = await db().query<{ currency: string; total: string | number; n: number }>(
-		`SELECT currency, SUM(amount_minor - refunded_minor) AS total, COUNT(*) AS n FROM payments WHERE workshop_id = ? AND state = 'paid' GROUP BY currency`,
+	const paid = await db().query<{ currency: string; received: string | number; refunded: string | number; n: number }>(
+		`SELECT currency, SUM(amount_minor) AS received, SUM(refunded_minor) AS refunded, COUNT(*) AS n FROM payments
+		 WHERE workshop_id = ? AND state IN ('paid', 'refunded') GROUP BY currency`,
 		{ replacements: [workshopId], type: QueryTypes.SELECT }
 	);
 	const outstanding = await db().query<{ currency: string; total: string | number; n: number }>(
@@ -355,43 +494,82 @@ export async function paymentTotals(workshopId: string) {
 		 GROUP BY q.currency`,
 		{ replacements: [workshopId], type: QueryTypes.SELECT }
 	);
-	const fmt = (r: { currency: string; total: string | number; n: number }) => ({
-		currency: r.currency as Currency,
-		totalMinor: Number(r.total),
-		total: formatMoney(Number(r.total), r.currency as Currency),
-		count: Number(r.n)
-	});
-	return { paid: paid.map(fmt), outstanding: outstanding.map(fmt) };
-}
-
-/** The workshop's latest payments for the desk's list (newest first, one page). */
-export async function listPayments(actor: Actor, page = 1, pageSize = 25) {
-	if (!isLead(actor)) throw new ForbiddenError('Only a workshop lead sees every payment');
-	const offset = (Math.max(1, page) - 1) * pageSize;
-	const rows = await db().query<Record<string, unknown>>(
-		`SELECT p.id, p.job_id, j.number, p.purpose, p.method, p.state, p.amount_minor, p.currency, p.created_at, p.paid_at, u.name AS by_name
-		 FROM payments p JOIN jobs j ON j.id = p.job_id LEFT JOIN users u ON u.id = p.created_by
-		 WHERE p.workshop_id = ? ORDER BY p.created_at DESC LIMIT ? OFFSET ?`,
-		{ replacements: [actor.workshopId, pageSize, offset], type: QueryTypes.SELECT }
-	);
-	const [{ n }] = await db().query<{ n: number }>('SELECT COUNT(*) AS n FROM payments WHERE workshop_id = ?', {
-		replacements: [actor.workshopId],
-		type: QueryTypes.SELECT
-	});
 	return {
-		total: Number(n),
-		page,
-		pageSize,
-		items: rows.map((r) => ({
-			id: r.id as string,
-			jobId: r.job_id as string,
-			jobNumber: Number(r.number),
-			purpose: r.purpose as Purpose,
-			method: r.method as Method,
-			state: r.state as PaymentState,
-			amount: formatMoney(Number(r.amount_minor), r.currency as Currency),
-			at: new Date(r.created_at as string),
-			by: (r.by_name as string | null) ?? 'The customer, on their link'
+		paid: paid.map((r) => {
+			const cur = r.currency as Currency;
+			const received = Number(r.received);
+			const refunded = Number(r.refunded);
+			const kept = sum([received, -refunded]);
+			return {
+				currency: cur,
+				/** Kept: received less refunded. */
+				totalMinor: kept,
+				total: formatMoney(kept, cur),
+				receivedMinor: received,
+				received: formatMoney(received, cur),
+				refundedMinor: refunded,
+				refunded: formatMoney(refunded, cur),
+				count: Number(r.n)
+			};
+		}),
+		outstanding: outstanding.map((r) => ({
+			currency: r.currency as Currency,
+			totalMinor: Number(r.total),
+			total: formatMoney(Number(r.total), r.currency as Currency),
+			count: Number(r.n)
 		}))
 	};
+}
+
+/** The sortable columns of the payments list (`-key` for descending). */
+export const PAYMENT_SORTS = ['when', 'job', 'purpose', 'method', 'amount', 'refunded', 'state', 'by'] as const;
+const PAYMENT_SORT_COLUMNS: Record<(typeof PAYMENT_SORTS)[number], string> = {
+	when: 'p.created_at',
+	job: 'j.number',
+	purpose: 'p.purpose',
+	method: 'p.method',
+	amount: 'p.amount_minor',
+	refunded: 'p.refunded_minor',
+	state: 'p.state',
+	by: 'u.name'
+};
+const paymentListQuery = z.object({
+	sort: sortParam(PAYMENT_SORTS, '-when'),
+	page: pageParam,
+	pageSize: pageSizeParam(25)
+});
+
+/** One page of the workshop's payments for the desk's list, sorted by any column (leads and owners). */
+export async function listPayments(actor: Actor, input: unknown = {}) {
+	if (!isLead(actor)) throw new ForbiddenError('Only a workshop lead sees every payment');
+	const r = paymentListQuery.safeParse(input);
+	if (!r.success) throw ValidationError.fromZod(r.error);
+	const { sort, page, pageSize } = r.data;
+	const from = 'payments p JOIN jobs j ON j.id = p.job_id LEFT JOIN users u ON u.id = p.created_by';
+	const where = new Where().and('p.workshop_id = ?', actor.workshopId);
+	const { ids, total } = await pageOfIds('p.id', from, where, orderBy(sort, PAYMENT_SORT_COLUMNS, 'p.id'), page, pageSize);
+	const rows = ids.length
+		? await db().query<Record<string, unknown>>(
+				`SELECT p.id, p.job_id, j.number, p.purpose, p.method, p.state, p.amount_minor, p.refunded_minor, p.currency, p.created_at, p.paid_at, u.name AS by_name
+				 FROM ${from} WHERE p.id IN (?)`,
+				{ replacements: [ids], type: QueryTypes.SELECT }
+			)
+		: [];
+	const items = inOrder(
+		ids,
+		rows.map((row) => ({ ...row, id: row.id as string }) as Record<string, unknown> & { id: string })
+	).map((row) => ({
+		id: row.id,
+		jobId: row.job_id as string,
+		jobNumber: Number(row.number),
+		purpose: row.purpose as Purpose,
+		method: row.method as Method,
+		state: row.state as PaymentState,
+		amountMinor: Number(row.amount_minor),
+		amount: formatMoney(Number(row.amount_minor), row.currency as Currency),
+		...refundFigures(row),
+		at: new Date(row.created_at as string),
+		by: (row.by_name as string | null) ?? 'The customer, on their link'
+	}));
+	return { items, total, page, pageSize };
 }

@@ -11,7 +11,7 @@ import { User } from '../db/models';
 import { paymentsConfigured } from '../payments/provider';
 import { paymentsOfJob } from '../payments/service';
 import { quotesOfJob } from '../services/quotes';
-import { linksOfQuotes } from './links';
+import { latestLinkState, linksOfQuotes } from './links';
 import { readPricing, type PricedLine } from './pricing';
 
 export async function jobMoney(actor: Actor, jobId: string, now = new Date()) {
@@ -27,7 +27,8 @@ export async function jobMoney(actor: Actor, jobId: string, now = new Date()) {
 			const cur = (q.currency ?? 'GBP') as Currency;
 			const mine = links.filter((l) => l.quoteId === q.id);
 			let state = q.state as QuoteState;
-			if (state === 'sent' && mine.length && mine.every((l) => !l.answeredAt && l.expiresAt <= now)) state = 'expired';
+			const link = latestLinkState(mine, now);
+			if (state === 'sent' && link?.expired) state = 'expired';
 			return {
 				id: q.id as string,
 				version: q.version as number,
@@ -54,7 +55,9 @@ export async function jobMoney(actor: Actor, jobId: string, now = new Date()) {
 							recordedBy: q.answeredBy ? nameOf(q.answeredBy) : null
 						}
 					: null,
-				links: mine
+				links: mine,
+				/** When the latest link ran out, for a quote waiting for a fresh one. */
+				linkExpiredAt: state === 'expired' ? (link?.expiresAt ?? null) : null
 			};
 		}),
 		payments

@@ -56,6 +56,9 @@ export class LinkGoneError extends AppError {
 		super(410, 'gone', message);
 	}
 }
+/** A link made before the latest one of its quote: refused, the customer uses the new one. */
+export const REPLACED_MESSAGE = 'The workshop has sent you a newer link for this quote. Please use the latest link.';
+
 export class AlreadyAnsweredError extends AppError {
 	constructor(message = 'This quote has already been answered.') {
 		super(409, 'answered', message);
@@ -127,6 +130,12 @@ export async function makeQuoteLink(actor: Actor, quoteId: string, baseUrl: stri
 		const token = newReportToken();
 		const id = uuidv7();
 		const expiresAt = new Date(now.getTime() + QUOTE_LINK_DAYS * 86_400_000);
+		// A fresh link retires every unanswered older one of the quote (they are refused).
+		await db().query('UPDATE quote_links SET replaced_at = ? WHERE quote_id = ? AND workshop_id = ? AND answered_at IS NULL AND replaced_at IS NULL', {
+			replacements: [now, q.id, actor.workshopId],
+			transaction: t,
+			type: QueryTypes.UPDATE
+		});
 		await db().query(
 			`INSERT INTO quote_links (id, workshop_id, quote_id, token_hash, expires_at, created_by, created_at, shown)
 			 VALUES (?, ?, ?, ?, ?, ?, UTC_TIMESTAMP(3), ?)`,
@@ -176,12 +185,13 @@ type LinkRow = {
 	answered_at: Date | null;
 	decision: 'approved' | 'declined' | null;
 	typed_name: string | null;
+	replaced_at: Date | null;
 };
 
 async function findLink(token: string, t?: Transaction, lock = false): Promise<{ link: LinkRow; quote: Quote } | null> {
 	if (!looksLikeToken(token)) return null;
 	const [link] = await db().query<LinkRow>(
-		`SELECT id, workshop_id, quote_id, expires_at, shown, answered_at, decision, typed_name FROM quote_links WHERE token_hash = ?${lock ? ' FOR UPDATE' : ''}`,
+		`SELECT id, workshop_id, quote_id, expires_at, shown, answered_at, decision, typed_name, replaced_at FROM quote_links WHERE token_hash = ?${lock ? ' FOR UPDATE' : ''}`,
 		{ replacements: [hashReportToken(token)], type: QueryTypes.SELECT, transaction: t }
 	);
 	if (!link) return null;
@@ -207,6 +217,7 @@ export async function openQuoteLink(token: string, now = new Date()): Promise<Op
 	if (!found) throw new NotFoundError('Quote');
 	const { link, quote } = found;
 	const answer = link.answered_at ? { decision: link.decision!, name: link.typed_name ?? '', at: new Date(link.answered_at) } : null;
+	if (!answer && link.replaced_at) throw new LinkGoneError(REPLACED_MESSAGE);
 	if (!answer && new Date(link.expires_at).getTime() <= now.getTime()) throw new LinkGoneError();
 	const shown = JSON.parse(link.shown) as ShownQuote;
 	let closed: string | null = null;
@@ -234,6 +245,7 @@ export async function answerQuoteLink(token: string, input: unknown, now = new D
 		if (!found) throw new NotFoundError('Quote');
 		const { link } = found;
 		if (link.answered_at) throw new AlreadyAnsweredError();
+		if (link.replaced_at) throw new LinkGoneError(REPLACED_MESSAGE);
 		if (new Date(link.expires_at).getTime() <= now.getTime()) throw new LinkGoneError();
 		const quote = await Quote.findOne({ where: { id: link.quote_id, workshopId: link.workshop_id }, transaction: t, lock: t.LOCK.UPDATE });
 		const shown = JSON.parse(link.shown) as ShownQuote;
@@ -256,7 +268,7 @@ export async function answerQuoteLink(token: string, input: unknown, now = new D
 export async function linksOfQuotes(actor: Actor, quoteIds: string[]) {
 	if (!quoteIds.length) return [];
 	const rows = await db().query<Record<string, unknown>>(
-		`SELECT id, quote_id, expires_at, created_at, answered_at, decision, typed_name FROM quote_links
+		`SELECT id, quote_id, expires_at, created_at, answered_at, decision, typed_name, replaced_at FROM quote_links
 		 WHERE workshop_id = ? AND quote_id IN (?) ORDER BY created_at DESC`,
 		{ replacements: [actor.workshopId, quoteIds], type: QueryTypes.SELECT }
 	);
@@ -267,6 +279,30 @@ export async function linksOfQuotes(actor: Actor, quoteIds: string[]) {
 		createdAt: new Date(r.created_at as string),
 		answeredAt: r.answered_at ? new Date(r.answered_at as string) : null,
 		decision: (r.decision as string | null) ?? null,
-		typedName: (r.typed_name as string | null) ?? null
+		typedName: (r.typed_name as string | null) ?? null,
+		replacedAt: r.replaced_at ? new Date(r.replaced_at as string) : null
 	}));
+}
+
+export type LinkState = { expiresAt: Date; expired: boolean; answered: boolean } | null;
+
+/**
+ * The state of a quote's latest link (for the phone and the job page): when it runs out and
+ * whether it has; null when no link was made yet. A quote whose latest link ran out
+ * unanswered needs a fresh one.
+ */
+export function latestLinkState(links: { createdAt: Date; expiresAt: Date; answeredAt: Date | null; replacedAt: Date | null }[], now = new Date()): LinkState {
+	const latest = [...links].filter((l) => !l.replacedAt).sort((a, b) => b.createdAt.getTime() - a.createdAt.getTime())[0];
+	if (!latest) return null;
+	return { expiresAt: latest.expiresAt, expired: !latest.answeredAt && latest.expiresAt.getTime() <= now.getTime(), answered: Boolean(latest.answeredAt) };
+}
+
+/** The latest link's state of one quote the actor may see (404 otherwise). */
+export async function quoteLinkState(actor: Actor, quoteId: string, now = new Date()): Promise<LinkState> {
+	if (!z.uuid().safeParse(quoteId).success) throw new NotFoundError('Quote');
+	const q = await Quote.findOne({ where: { id: quoteId, workshopId: actor.workshopId, deletedAt: { [Op.is]: null } } });
+	if (!q) throw new NotFoundError('Quote');
+	const job = await Job.findOne({ where: { id: q.jobId, workshopId: actor.workshopId } });
+	if (!job || !seesJob(actor, job)) throw new NotFoundError('Quote');
+	return latestLinkState(await linksOfQuotes(actor, [q.id]), now);
 }

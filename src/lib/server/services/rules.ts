@@ -360,3 +360,24 @@ export const quoteRules: Rules = {
 			throw new ValidationError({ verbalName: 'Type the name of the customer who answered' });
 	}
 };
+
+/**
+ * Refunds. Only a workshop lead or owner refunds, only a payment that was paid, and never
+ * more than what is left unrefunded (several partial refunds may add up to the whole);
+ * the amount is a whole number of minor units above zero. `leftMinor` is worked out by the
+ * payments service under a lock on the payment.
+ */
+export function refuseRefund(
+	actor: Actor,
+	payment: { state: string; leftMinor: number },
+	amountMinor: number,
+	leftText: string
+): void {
+	leadsOnly(actor, 'Only a workshop lead or owner can refund a payment');
+	if (payment.state !== 'paid') throw new ForbiddenError('Only a paid payment can be refunded');
+	if (payment.leftMinor <= 0) throw new ForbiddenError('This payment has been refunded in full');
+	if (!Number.isSafeInteger(amountMinor) || amountMinor < 1)
+		throw new ValidationError({ amount: 'Type an amount above zero' });
+	if (amountMinor > payment.leftMinor)
+		throw new ValidationError({ amount: `At most ${leftText}: that is what is left to refund` });
+}

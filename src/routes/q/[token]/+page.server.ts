@@ -5,6 +5,7 @@ import { askCardPaymentForQuote, PaymentsOffError } from '$lib/server/payments/s
 import { paymentsConfigured } from '$lib/server/payments/provider';
 import { db } from '$lib/server/db';
 import { QueryTypes } from 'sequelize';
+import { formatMoney } from '$lib/money';
 
 /** The customer's quote by its link; no sign-in (the unguessable token is the key). */
 export async function load({ params, setHeaders, url }) {
@@ -16,16 +17,23 @@ export async function load({ params, setHeaders, url }) {
 		if (e instanceof AppError && (e.status === 404 || e.status === 410)) error(e.status, e.message);
 		throw e;
 	}
-	const [paid] = await db().query<{ n: number }>(
-		`SELECT COUNT(*) AS n FROM payments WHERE workshop_id = ? AND quote_id = ? AND state = 'paid'`,
+	const [paid] = await db().query<{ n: number; paid: string | number | null; refunded: string | number | null }>(
+		`SELECT COUNT(*) AS n, SUM(amount_minor) AS paid, SUM(refunded_minor) AS refunded FROM payments
+		 WHERE workshop_id = ? AND quote_id = ? AND state IN ('paid', 'refunded')`,
 		{ replacements: [q.workshopId, q.quoteId], type: QueryTypes.SELECT }
 	);
+	const paidMinor = Number(paid?.paid ?? 0);
+	const refundedMinor = Number(paid?.refunded ?? 0);
 	return {
 		shown: q.shown,
 		expiresAt: q.expiresAt.toISOString(),
 		answer: q.answer ? { ...q.answer, at: q.answer.at.toISOString() } : null,
 		closed: q.closed,
 		paid: Number(paid?.n ?? 0) > 0,
+		// What the customer paid and had back, in their receipt's words.
+		receipt: refundedMinor
+			? { paid: formatMoney(paidMinor, q.shown.currency), refunded: formatMoney(refundedMinor, q.shown.currency), kept: formatMoney(paidMinor - refundedMinor, q.shown.currency) }
+			: null,
 		canPay: paymentsConfigured() && (q.answer?.decision === 'approved' || q.quoteState === 'approved'),
 		back: url.searchParams.get('paid') === '1'
 	};

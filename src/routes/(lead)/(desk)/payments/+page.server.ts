@@ -1,13 +1,8 @@
 import { guardPage, LEADS } from '$lib/server/auth/guards';
-import { actorOf } from '$lib/server/auth/types';
-import { listPayments, paymentTotals } from '$lib/server/payments/service';
+import { paymentTotals } from '$lib/server/payments/service';
 
+/** The totals; the list itself comes from GET /api/payments (sorted and paged by the URL). */
 export async function load(event) {
 	const user = guardPage(event, LEADS);
-	const page = Math.max(1, Math.min(10_000, Number(event.url.searchParams.get('page')) || 1));
-	return {
-		title: 'Payments',
-		list: await listPayments(actorOf(user), page),
-		totals: await paymentTotals(user.workshopId)
-	};
+	return { title: 'Payments', totals: await paymentTotals(user.workshopId) };
 }

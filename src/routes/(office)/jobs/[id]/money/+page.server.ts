@@ -12,6 +12,7 @@ import { makeQuoteLink } from '$lib/server/quotes/links';
 import * as jobs from '$lib/server/services/jobs';
 import { quotes } from '$lib/server/services/quotes';
 import { isLead } from '$lib/roles';
+import { formatMoney } from '$lib/money';
 
 /** A QR code of an address as SVG markup (drawn by the `qrcode` package, no script, no style). */
 const qrOf = (url: string) => QRCode.toString(url, { type: 'svg', margin: 2, errorCorrectionLevel: 'M' });
@@ -80,10 +81,10 @@ export const actions = {
 		const actor = actorOf(guardPage(event));
 		const fd = await event.request.formData();
 		try {
-			await refundPayment(actor, String(fd.get('paymentId') ?? ''));
+			const made = await refundPayment(actor, String(fd.get('paymentId') ?? ''), { amount: String(fd.get('amount') ?? ''), reason: String(fd.get('reason') ?? '') });
+			return { action: 'refund', saved: true, paymentId: String(fd.get('paymentId')), refunded: formatMoney(made.amountMinor, made.currency) };
 		} catch (e) {
 			return failFrom(e, valuesOf(fd), 'refund');
 		}
-		return { action: 'refund', saved: true };
 	}
 };

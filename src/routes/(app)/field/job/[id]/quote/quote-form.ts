@@ -47,3 +47,17 @@ export function requestOf(c: Choice, testId: string | null) {
 		testId
 	};
 }
+
+/** The latest link of a quote as the phone keeps it (IndexedDB `meta['quote-link:<id>']`). */
+export type KeptLink = { quoteId: string; expiresAt: string };
+
+/**
+ * Whether the quote's approval link ran out unanswered, from what the phone keeps (so it
+ * can tell offline): only a sent quote, only the link kept for this very quote, and only
+ * once its time has come (`now` in ms).
+ */
+export function linkRanOut(kept: KeptLink | null, quote: { id: string; state: unknown } | null, now: number): boolean {
+	if (!kept || !quote || quote.state !== 'sent' || kept.quoteId !== quote.id) return false;
+	const end = Date.parse(kept.expiresAt);
+	return Number.isFinite(end) && end <= now;
+}
