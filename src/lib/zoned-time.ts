@@ -74,9 +74,12 @@ export function longDayIn(at: Date | string | number, zone: string | null): stri
 	return `${p.day} ${p.month} ${p.year}`;
 }
 
-/** "3 Dec 2026, 15:05 BST": day, 24-hour clock and the zone's short name at that instant ("UTC", "CEST", "GMT-4"). */
-export function momentIn(at: Date | string | number, zone: string | null): string {
-	const p = partsIn(at, zone);
+/**
+ * "3 Dec 2026, 15:05 BST": day, 24-hour clock and the zone's short name at that instant ("UTC",
+ * "CEST", "GMT-4"); with `month: 'long'`, "3 December 2026, 15:05 BST" (for customers).
+ */
+export function momentIn(at: Date | string | number, zone: string | null, month: 'short' | 'long' = 'short'): string {
+	const p = partsIn(at, zone, month);
 	return `${p.day} ${p.month} ${p.year}, ${p.hour}:${p.minute} ${p.zoneName}`;
 }
 

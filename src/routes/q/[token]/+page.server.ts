@@ -5,6 +5,7 @@ import { askCardPaymentForQuote, PaymentsOffError } from '$lib/server/payments/s
 import { paymentsConfigured } from '$lib/server/payments/provider';
 import { db } from '$lib/server/db';
 import { QueryTypes } from 'sequelize';
+import { timeZoneOf } from '$lib/server/services/workshops';
 
 /** The customer's quote by its link; no sign-in (the unguessable token is the key). */
 export async function load({ params, setHeaders, url }) {
@@ -16,6 +17,7 @@ export async function load({ params, setHeaders, url }) {
 		if (e instanceof AppError && (e.status === 404 || e.status === 410)) error(e.status, e.message);
 		throw e;
 	}
+	const timeZone = await timeZoneOf(q.workshopId);
 	const [paid] = await db().query<{ n: number }>(
 		`SELECT COUNT(*) AS n FROM payments WHERE workshop_id = ? AND quote_id = ? AND state = 'paid'`,
 		{ replacements: [q.workshopId, q.quoteId], type: QueryTypes.SELECT }
@@ -23,6 +25,7 @@ export async function load({ params, setHeaders, url }) {
 	return {
 		shown: q.shown,
 		expiresAt: q.expiresAt.toISOString(),
+		timeZone,
 		answer: q.answer ? { ...q.answer, at: q.answer.at.toISOString() } : null,
 		closed: q.closed,
 		paid: Number(paid?.n ?? 0) > 0,
