@@ -276,7 +276,7 @@ export function dateText(day: string): string {
 export const timeNoteOf = (zone: string) =>
 	zone === 'UTC'
 		? 'Dates and times in this report are in UTC.'
-		: `Dates and times in this report are the workshop's local time (${zoneWords(zone)}).`;
+		: `Dates and times in this report are the workshop’s local time (${zoneWords(zone)}).`;
 
 /** The report in the customer's words. */
 export function buildReport(f: ReportFacts): ReportDoc {
