@@ -12,13 +12,22 @@ export const UTC = 'UTC';
 
 let known: Set<string> | null = null;
 
+const IANA_SHAPE = /^(?:[A-Z][A-Za-z_-]*\/)+[A-Z][A-Za-z0-9_+-]*$/;
+
 /**
- * Whether `zone` is an IANA zone name this runtime knows (`Intl.supportedValuesOf('timeZone')`,
- * which lists canonical names only), or `UTC` (Node 20's list leaves it out).
+ * Whether `zone` is an IANA zone name this runtime knows: one `Intl.supportedValuesOf('timeZone')`
+ * lists, `UTC` (Node 20's list leaves it out), or another IANA name of a listed zone (the list
+ * keeps older names: it has `Asia/Calcutta`, and `Asia/Kolkata` is its current name).
  */
 export function isTimeZone(zone: string): boolean {
 	known ??= new Set([...Intl.supportedValuesOf('timeZone'), UTC]);
-	return known.has(zone);
+	if (known.has(zone)) return true;
+	if (!IANA_SHAPE.test(zone)) return false;
+	try {
+		return known.has(new Intl.DateTimeFormat('en', { timeZone: zone }).resolvedOptions().timeZone);
+	} catch {
+		return false; // RangeError: no such zone
+	}
 }
 
 /** Every zone a lead may choose, `UTC` first, then A–Z. */

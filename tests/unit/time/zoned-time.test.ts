@@ -93,6 +93,14 @@ describe('zone names', () => {
 		expect(isTimeZone('')).toBe(false);
 	});
 
+	it('take the current IANA name of a zone the runtime lists under an older one, but not a mis-cased name', () => {
+		// IANA tzdb `backward` file: Asia/Calcutta is the older name of Asia/Kolkata, Europe/Kiev of Europe/Kyiv.
+		expect(isTimeZone('Asia/Kolkata')).toBe(true);
+		expect(isTimeZone('Europe/Kyiv')).toBe(true);
+		expect(isTimeZone('europe/london')).toBe(false);
+		expect(isTimeZone('Etc/GMT+5x')).toBe(false);
+	});
+
 	it('list UTC first, then every zone the runtime knows once', () => {
 		const names = timeZoneNames();
 		expect(names[0]).toBe('UTC');
