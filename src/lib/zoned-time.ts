@@ -108,3 +108,55 @@ export function isoDayIn(at: Date | string | number, zone: string | null): strin
 
 /** "Europe/London" → "Europe/London"; "America/Argentina/Buenos_Aires" → "America/Argentina/Buenos Aires". */
 export const zoneWords = (zone: string) => zone.replaceAll('_', ' ');
+
+/** Seconds east of UTC that `zone` is at the instant `ms` (3600 for BST, -14400 for EDT). */
+export function offsetAt(ms: number, zone: string | null): number {
+	const p: Record<string, string> = {};
+	const f = new Intl.DateTimeFormat('en-US', {
+		timeZone: zone ?? undefined,
+		year: 'numeric',
+		month: 'numeric',
+		day: 'numeric',
+		hour: 'numeric',
+		minute: 'numeric',
+		second: 'numeric',
+		hourCycle: 'h23'
+	});
+	for (const x of f.formatToParts(new Date(ms))) p[x.type] = x.value;
+	const wall = Date.UTC(+p.year, +p.month - 1, +p.day, +p.hour, +p.minute, +p.second);
+	return Math.round((wall - Math.floor(ms / 1000) * 1000) / 1000);
+}
+
+/** The instant (ms since 1970) at which the day `YYYY-MM-DD` begins on the clocks of `zone`. */
+export function startOfDayIn(day: string, zone: string | null): number {
+	const midnight = Date.parse(`${day}T00:00:00Z`);
+	const first = midnight - offsetAt(midnight, zone) * 1000;
+	return midnight - offsetAt(first, zone) * 1000;
+}
+
+const DAY_MS = 86_400_000;
+
+/**
+ * The offsets `zone` keeps over the instants [fromMs, toMs): one piece per offset, each with the
+ * instant it ends (`until`, ms; `null` for the last). Changes are found day by day, then to the second.
+ */
+export function offsetPieces(fromMs: number, toMs: number, zone: string | null): { until: number | null; offset: number }[] {
+	const pieces: { until: number | null; offset: number }[] = [];
+	let offset = offsetAt(fromMs, zone);
+	for (let lo = fromMs; lo < toMs; lo += DAY_MS) {
+		let hi = Math.min(lo + DAY_MS, toMs);
+		if (offsetAt(hi, zone) === offset) continue;
+		let a = lo;
+		while (hi - a > 1000) {
+			const mid = Math.floor((a + hi) / 2);
+			if (offsetAt(mid, zone) === offset) a = mid;
+			else hi = mid;
+		}
+		const change = Math.floor(hi / 1000) * 1000;
+		pieces.push({ until: change, offset });
+		offset = offsetAt(change, zone);
+		lo = change - DAY_MS; // the loop's step lands on the change
+	}
+	pieces.push({ until: null, offset });
+	return pieces;
+}

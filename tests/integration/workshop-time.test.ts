@@ -4,15 +4,18 @@
  * IANA tzdb via Intl (Europe/London keeps BST, UTC+1, from 29 March to 25 October 2026, Rule EU).
  */
 import { QueryTypes } from 'sequelize';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, inject, it } from 'vitest';
 import { db } from '../../src/lib/server/db';
 import { Workshop } from '../../src/lib/server/db/models';
 import { gatherFacts, jobWithParties } from '../../src/lib/server/reports/facts';
 import { readReportSettings } from '../../src/lib/server/reports/settings';
 import { jobs } from '../../src/lib/server/services/jobs';
+import { saveTimeZone } from '../../src/lib/server/services/workshops';
+import { deskWorkshop, meter } from '../helpers/desk';
 import { makeWorkshop } from '../helpers/fixtures';
 import type { Client } from '../helpers/http';
 import { signedIn } from '../helpers/records';
+import { create, push } from '../helpers/sync';
 
 let ws: Awaited<ReturnType<typeof makeWorkshop>>;
 let lead: Client;
@@ -78,5 +81,48 @@ describe('the workshop time zone', () => {
 		const r = await setZone(tech, 'Asia/Kolkata');
 		expect(r.status).toBe(403);
 		expect(await zoneOf()).not.toBe('Asia/Kolkata');
+	});
+});
+
+describe("the overview's days", () => {
+	it("count a test by the day on the workshop's clock, its lead zero too", async () => {
+		const w = await deskWorkshop(inject('baseURL'), 'Clock overview');
+		const lead = w.users.lead.actor;
+		const jobId = (await jobs.create(lead, { complaint: 'Late-night misfire', assigneeId: w.users.technician.id })).id as string;
+		const t = create('test', {
+			jobId,
+			componentId: w.componentId,
+			sheetId: w.sheetId,
+			partNumber: 'TZ-LATE-1',
+			position: '1',
+			meter: meter('Night Meter', 0.1),
+			temperature: { mode: 'measured', tempC: 20 }
+		});
+		expect((await push(w.as.technician, 'tz-phone', [t])).every((r) => r.status === 'applied')).toBe(true);
+		// Reached the workshop at 23:30 UTC on 14 August 2026: 00:30 BST on the 15th in London (IANA tzdb via Intl).
+		await db().query(`UPDATE tests SET created_at = '2026-08-14 23:30:00.000' WHERE id = ?`, {
+			replacements: [t.entityId],
+			type: QueryTypes.UPDATE
+		});
+		const day = async (d: string) => (await w.as.lead.get(`/api/overview?from=${d}&to=${d}`)).json();
+		const parts = (o: { parts: { partNumber: string }[] }) => o.parts.map((p) => p.partNumber);
+
+		await saveTimeZone(lead, { timeZone: 'Europe/London' });
+		const london = await day('2026-08-15');
+		expect(parts(london)).toEqual(['TZ-LATE-1']);
+		expect(london.leadZero[0].points[0].period).toBe('2026-08-15');
+		expect(parts(await day('2026-08-14'))).toEqual([]);
+		// A year spans both changes of 2026 (Rule EU), in weeks from Monday on London's clock:
+		// Saturday 15 August is in the week of Monday 10 August (Friday 14th would be too, so
+		// the range's own day is what the two lines above tell apart).
+		const year = await (await w.as.lead.get('/api/overview?from=2026-01-01&to=2026-12-31')).json();
+		expect(year.bucket).toBe('week');
+		expect(year.leadZero[0].points[0].period).toBe('2026-08-10');
+
+		await saveTimeZone(lead, { timeZone: 'UTC' });
+		const utc = await day('2026-08-14');
+		expect(parts(utc)).toEqual(['TZ-LATE-1']);
+		expect(utc.leadZero[0].points[0].period).toBe('2026-08-14');
+		expect(parts(await day('2026-08-15'))).toEqual([]);
 	});
 });

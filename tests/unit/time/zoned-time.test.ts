@@ -21,6 +21,9 @@ import {
 	isTimeZone,
 	longDayIn,
 	momentIn,
+	offsetAt,
+	offsetPieces,
+	startOfDayIn,
 	timeZoneNames
 } from '../../../src/lib/zoned-time';
 
@@ -113,5 +116,36 @@ describe('zone names', () => {
 		const fallback = defaultTimeZone('Nowhere/Made_Up');
 		expect(fallback).not.toBe('Nowhere/Made_Up');
 		expect(isTimeZone(fallback)).toBe(true);
+	});
+});
+
+describe('offsets and the start of a day', () => {
+	it('give the offset east of UTC on each side of a change (IANA tzdb via Intl, Rules EU and US)', () => {
+		expect(offsetAt(Date.parse('2026-03-29T00:59:59Z'), 'Europe/London')).toBe(0);
+		expect(offsetAt(Date.parse('2026-03-29T01:00:00Z'), 'Europe/London')).toBe(3600);
+		expect(offsetAt(Date.parse('2026-07-01T12:00:00Z'), 'America/New_York')).toBe(-4 * 3600);
+		expect(offsetAt(Date.parse('2026-12-01T12:00:00Z'), 'Asia/Kolkata')).toBe(5.5 * 3600);
+	});
+
+	it("find the instant a day begins on the workshop's clock (IANA tzdb via Intl)", () => {
+		// London in summer (BST, UTC+1): 15 August begins at 23:00 UTC on the 14th.
+		expect(new Date(startOfDayIn('2026-08-15', 'Europe/London')).toISOString()).toBe('2026-08-14T23:00:00.000Z');
+		// London in winter (GMT): at midnight UTC. The day of the change (29 March) begins on GMT.
+		expect(new Date(startOfDayIn('2026-12-03', 'Europe/London')).toISOString()).toBe('2026-12-03T00:00:00.000Z');
+		expect(new Date(startOfDayIn('2026-03-30', 'Europe/London')).toISOString()).toBe('2026-03-29T23:00:00.000Z');
+		// New York on EST (UTC-5) in December.
+		expect(new Date(startOfDayIn('2026-12-03', 'America/New_York')).toISOString()).toBe('2026-12-03T05:00:00.000Z');
+	});
+
+	it('split a year into the pieces between summer-time changes (IANA tzdb via Intl, Rule EU: 2026-03-29 and 2026-10-25 at 01:00 UTC)', () => {
+		const pieces = offsetPieces(Date.parse('2026-01-01T00:00:00Z'), Date.parse('2027-01-01T00:00:00Z'), 'Europe/London');
+		expect(pieces).toEqual([
+			{ until: Date.parse('2026-03-29T01:00:00Z'), offset: 0 },
+			{ until: Date.parse('2026-10-25T01:00:00Z'), offset: 3600 },
+			{ until: null, offset: 0 }
+		]);
+		expect(offsetPieces(Date.parse('2026-01-01T00:00:00Z'), Date.parse('2027-01-01T00:00:00Z'), 'Asia/Kolkata')).toEqual([
+			{ until: null, offset: 19800 }
+		]);
 	});
 });
