@@ -9,8 +9,14 @@ import type { MigrationContext } from '../src/lib/server/db/migrator';
 import { defaultTimeZone } from '../src/lib/zoned-time';
 
 export async function up({ sequelize }: MigrationContext): Promise<void> {
-	await sequelize.query(`ALTER TABLE workshops ADD COLUMN time_zone VARCHAR(64) NOT NULL DEFAULT 'UTC' AFTER name`, { type: QueryTypes.RAW });
-	await sequelize.query('UPDATE workshops SET time_zone = ?', { replacements: [defaultTimeZone()], type: QueryTypes.UPDATE });
+	await sequelize.query(
+		`ALTER TABLE workshops ADD COLUMN time_zone VARCHAR(64) NOT NULL DEFAULT 'UTC' AFTER name`,
+		{ type: QueryTypes.RAW }
+	);
+	await sequelize.query('UPDATE workshops SET time_zone = ?', {
+		replacements: [defaultTimeZone()],
+		type: QueryTypes.UPDATE
+	});
 }
 
 export async function down({ sequelize }: MigrationContext): Promise<void> {

@@ -36,14 +36,23 @@ export function timeZoneNames(): string[] {
 }
 
 /** The zone for a new workshop: the server's own (`TZ`, else Intl's default) if it is a known name, else `UTC`. */
-export function defaultTimeZone(env: string | undefined = typeof process === 'undefined' ? undefined : process.env.TZ): string {
+export function defaultTimeZone(
+	env: string | undefined = typeof process === 'undefined' ? undefined : process.env.TZ
+): string {
 	for (const z of [env, Intl.DateTimeFormat().resolvedOptions().timeZone]) {
 		if (z && isTimeZone(z)) return z;
 	}
 	return UTC;
 }
 
-type Parts = { day: string; month: string; year: string; hour: string; minute: string; zoneName: string };
+type Parts = {
+	day: string;
+	month: string;
+	year: string;
+	hour: string;
+	minute: string;
+	zoneName: string;
+};
 const formatters = new Map<string, Intl.DateTimeFormat>();
 
 function formatter(zone: string | null, month: 'short' | 'long'): Intl.DateTimeFormat {
@@ -65,10 +74,21 @@ function formatter(zone: string | null, month: 'short' | 'long'): Intl.DateTimeF
 	return f;
 }
 
-function partsIn(at: Date | string | number, zone: string | null, month: 'short' | 'long' = 'short'): Parts {
+function partsIn(
+	at: Date | string | number,
+	zone: string | null,
+	month: 'short' | 'long' = 'short'
+): Parts {
 	const p: Record<string, string> = {};
 	for (const x of formatter(zone, month).formatToParts(new Date(at))) p[x.type] = x.value;
-	return { day: p.day, month: p.month, year: p.year, hour: p.hour, minute: p.minute, zoneName: p.timeZoneName };
+	return {
+		day: p.day,
+		month: p.month,
+		year: p.year,
+		hour: p.hour,
+		minute: p.minute,
+		zoneName: p.timeZoneName
+	};
 }
 
 /** "3 Dec 2026": the calendar day of the instant `at` in `zone`. */
@@ -87,7 +107,11 @@ export function longDayIn(at: Date | string | number, zone: string | null): stri
  * "3 Dec 2026, 15:05 BST": day, 24-hour clock and the zone's short name at that instant ("UTC",
  * "CEST", "GMT-4"); with `month: 'long'`, "3 December 2026, 15:05 BST" (for customers).
  */
-export function momentIn(at: Date | string | number, zone: string | null, month: 'short' | 'long' = 'short'): string {
+export function momentIn(
+	at: Date | string | number,
+	zone: string | null,
+	month: 'short' | 'long' = 'short'
+): string {
 	const p = partsIn(at, zone, month);
 	return `${p.day} ${p.month} ${p.year}, ${p.hour}:${p.minute} ${p.zoneName}`;
 }
@@ -101,7 +125,12 @@ export function clockIn(at: Date | string | number, zone: string | null): string
 /** `YYYY-MM-DD`: the calendar day of `at` in `zone` (for a stored day such as the report's). */
 export function isoDayIn(at: Date | string | number, zone: string | null): string {
 	const p: Record<string, string> = {};
-	const f = new Intl.DateTimeFormat('en-CA', { timeZone: zone ?? undefined, year: 'numeric', month: '2-digit', day: '2-digit' });
+	const f = new Intl.DateTimeFormat('en-CA', {
+		timeZone: zone ?? undefined,
+		year: 'numeric',
+		month: '2-digit',
+		day: '2-digit'
+	});
 	for (const x of f.formatToParts(new Date(at))) p[x.type] = x.value;
 	return `${p.year}-${p.month}-${p.day}`;
 }
@@ -140,7 +169,11 @@ const DAY_MS = 86_400_000;
  * The offsets `zone` keeps over the instants [fromMs, toMs): one piece per offset, each with the
  * instant it ends (`until`, ms; `null` for the last). Changes are found day by day, then to the second.
  */
-export function offsetPieces(fromMs: number, toMs: number, zone: string | null): { until: number | null; offset: number }[] {
+export function offsetPieces(
+	fromMs: number,
+	toMs: number,
+	zone: string | null
+): { until: number | null; offset: number }[] {
 	const pieces: { until: number | null; offset: number }[] = [];
 	let offset = offsetAt(fromMs, zone);
 	for (let lo = fromMs; lo < toMs; lo += DAY_MS) {

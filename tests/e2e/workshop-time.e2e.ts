@@ -53,7 +53,9 @@ describe('the workshop time on the team page', () => {
 		});
 		await page.getByRole('button', { name: 'Save the workshop time' }).click();
 		await page.getByText('Choose a time zone from the list, like Europe/London').waitFor();
-		expect(await page.getByLabel('Time zone the workshop is in').getAttribute('aria-invalid')).toBe('true');
+		expect(await page.getByLabel('Time zone the workshop is in').getAttribute('aria-invalid')).toBe(
+			'true'
+		);
 		expect(await axeViolations(page), 'team page with the error').toEqual([]);
 	});
 });

@@ -28,13 +28,18 @@ const setZone = (who: Client, timeZone: string) => who.form('/team?/timeZone', {
 beforeAll(async () => {
 	ws = await makeWorkshop('Clock');
 	[lead, tech] = await Promise.all([signedIn(ws, 'lead'), signedIn(ws, 'technician')]);
-	const job = (await jobs.create(ws.users.lead.actor, { complaint: 'Slow crank in the mornings' })) as { id: string };
+	const job = (await jobs.create(ws.users.lead.actor, {
+		complaint: 'Slow crank in the mornings'
+	})) as { id: string };
 	jobId = job.id;
 	// The job's history says it was opened at 14:05 UTC on 1 July 2026.
-	await db().query(`UPDATE audit_log SET at = '2026-07-01 14:05:00.000' WHERE workshop_id = ? AND entity = 'job' AND entity_id = ?`, {
-		replacements: [ws.workshop.id, jobId],
-		type: QueryTypes.UPDATE
-	});
+	await db().query(
+		`UPDATE audit_log SET at = '2026-07-01 14:05:00.000' WHERE workshop_id = ? AND entity = 'job' AND entity_id = ?`,
+		{
+			replacements: [ws.workshop.id, jobId],
+			type: QueryTypes.UPDATE
+		}
+	);
 });
 
 describe('the workshop time zone', () => {
@@ -55,17 +60,31 @@ describe('the workshop time zone', () => {
 	it("says on the report which clock it follows, and dates it by the workshop's day", async () => {
 		await setZone(lead, 'Europe/London');
 		const page = await (await lead.get(`/jobs/${jobId}/report`, 'text/html')).text();
-		expect(page).toContain('Dates and times in this report are the workshop’s local time (Europe/London).');
+		expect(page).toContain(
+			'Dates and times in this report are the workshop’s local time (Europe/London).'
+		);
 
 		// 23:30 UTC on 14 August 2026 is 00:30 BST on the 15th in London (IANA tzdb via Intl).
 		const late = new Date('2026-08-14T23:30:00Z');
 		const actor = ws.users.lead.actor;
 		const parties = await jobWithParties(actor, jobId);
 		const notes = { workDone: null, recommendations: [] };
-		const london = await gatherFacts(actor, parties, await readReportSettings(ws.workshop.id), notes, late);
+		const london = await gatherFacts(
+			actor,
+			parties,
+			await readReportSettings(ws.workshop.id),
+			notes,
+			late
+		);
 		expect(london.facts.date).toBe('2026-08-15');
 		await setZone(lead, 'UTC');
-		const utc = await gatherFacts(actor, parties, await readReportSettings(ws.workshop.id), notes, late);
+		const utc = await gatherFacts(
+			actor,
+			parties,
+			await readReportSettings(ws.workshop.id),
+			notes,
+			late
+		);
 		expect(utc.facts.date).toBe('2026-08-14');
 	});
 
@@ -88,7 +107,12 @@ describe("the overview's days", () => {
 	it("count a test by the day on the workshop's clock, its lead zero too", async () => {
 		const w = await deskWorkshop(inject('baseURL'), 'Clock overview');
 		const lead = w.users.lead.actor;
-		const jobId = (await jobs.create(lead, { complaint: 'Late-night misfire', assigneeId: w.users.technician.id })).id as string;
+		const jobId = (
+			await jobs.create(lead, {
+				complaint: 'Late-night misfire',
+				assigneeId: w.users.technician.id
+			})
+		).id as string;
 		const t = create('test', {
 			jobId,
 			componentId: w.componentId,
@@ -98,13 +122,16 @@ describe("the overview's days", () => {
 			meter: meter('Night Meter', 0.1),
 			temperature: { mode: 'measured', tempC: 20 }
 		});
-		expect((await push(w.as.technician, 'tz-phone', [t])).every((r) => r.status === 'applied')).toBe(true);
+		expect(
+			(await push(w.as.technician, 'tz-phone', [t])).every((r) => r.status === 'applied')
+		).toBe(true);
 		// Reached the workshop at 23:30 UTC on 14 August 2026: 00:30 BST on the 15th in London (IANA tzdb via Intl).
 		await db().query(`UPDATE tests SET created_at = '2026-08-14 23:30:00.000' WHERE id = ?`, {
 			replacements: [t.entityId],
 			type: QueryTypes.UPDATE
 		});
-		const day = async (d: string) => (await w.as.lead.get(`/api/overview?from=${d}&to=${d}`)).json();
+		const day = async (d: string) =>
+			(await w.as.lead.get(`/api/overview?from=${d}&to=${d}`)).json();
 		const parts = (o: { parts: { partNumber: string }[] }) => o.parts.map((p) => p.partNumber);
 
 		await saveTimeZone(lead, { timeZone: 'Europe/London' });

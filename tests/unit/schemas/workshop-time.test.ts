@@ -3,7 +3,9 @@ import { workshopTimeSchema } from '../../../src/lib/schemas/workshop-time';
 
 describe('the workshop time zone form', () => {
 	it('take an IANA zone name, spaces trimmed', () => {
-		expect(workshopTimeSchema.parse({ timeZone: ' Europe/London ' })).toEqual({ timeZone: 'Europe/London' });
+		expect(workshopTimeSchema.parse({ timeZone: ' Europe/London ' })).toEqual({
+			timeZone: 'Europe/London'
+		});
 		expect(workshopTimeSchema.parse({ timeZone: 'UTC' })).toEqual({ timeZone: 'UTC' });
 	});
 
@@ -15,7 +17,9 @@ describe('the workshop time zone form', () => {
 	});
 
 	it('refuse an empty choice and a fixed offset that is not a zone', () => {
-		expect(workshopTimeSchema.safeParse({ timeZone: '' }).error?.issues[0].message).toBe('Choose the time zone the workshop is in');
+		expect(workshopTimeSchema.safeParse({ timeZone: '' }).error?.issues[0].message).toBe(
+			'Choose the time zone the workshop is in'
+		);
 		expect(workshopTimeSchema.safeParse({ timeZone: '+01:00' }).success).toBe(false);
 	});
 });

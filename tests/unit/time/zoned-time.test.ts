@@ -64,7 +64,9 @@ describe('moments in the workshop zone across summer-time changes', () => {
 
 	it('write the month in full for customers when asked', () => {
 		// IANA tzdb via Intl: 2026-10-25 00:30 UTC is 01:30 BST in London (before the 01:00 UTC change).
-		expect(momentIn('2026-10-25T00:30:00Z', 'Europe/London', 'long')).toBe('25 October 2026, 01:30 BST');
+		expect(momentIn('2026-10-25T00:30:00Z', 'Europe/London', 'long')).toBe(
+			'25 October 2026, 01:30 BST'
+		);
 	});
 });
 
@@ -129,23 +131,39 @@ describe('offsets and the start of a day', () => {
 
 	it("find the instant a day begins on the workshop's clock (IANA tzdb via Intl)", () => {
 		// London in summer (BST, UTC+1): 15 August begins at 23:00 UTC on the 14th.
-		expect(new Date(startOfDayIn('2026-08-15', 'Europe/London')).toISOString()).toBe('2026-08-14T23:00:00.000Z');
+		expect(new Date(startOfDayIn('2026-08-15', 'Europe/London')).toISOString()).toBe(
+			'2026-08-14T23:00:00.000Z'
+		);
 		// London in winter (GMT): at midnight UTC. The day of the change (29 March) begins on GMT.
-		expect(new Date(startOfDayIn('2026-12-03', 'Europe/London')).toISOString()).toBe('2026-12-03T00:00:00.000Z');
-		expect(new Date(startOfDayIn('2026-03-30', 'Europe/London')).toISOString()).toBe('2026-03-29T23:00:00.000Z');
+		expect(new Date(startOfDayIn('2026-12-03', 'Europe/London')).toISOString()).toBe(
+			'2026-12-03T00:00:00.000Z'
+		);
+		expect(new Date(startOfDayIn('2026-03-30', 'Europe/London')).toISOString()).toBe(
+			'2026-03-29T23:00:00.000Z'
+		);
 		// New York on EST (UTC-5) in December.
-		expect(new Date(startOfDayIn('2026-12-03', 'America/New_York')).toISOString()).toBe('2026-12-03T05:00:00.000Z');
+		expect(new Date(startOfDayIn('2026-12-03', 'America/New_York')).toISOString()).toBe(
+			'2026-12-03T05:00:00.000Z'
+		);
 	});
 
 	it('split a year into the pieces between summer-time changes (IANA tzdb via Intl, Rule EU: 2026-03-29 and 2026-10-25 at 01:00 UTC)', () => {
-		const pieces = offsetPieces(Date.parse('2026-01-01T00:00:00Z'), Date.parse('2027-01-01T00:00:00Z'), 'Europe/London');
+		const pieces = offsetPieces(
+			Date.parse('2026-01-01T00:00:00Z'),
+			Date.parse('2027-01-01T00:00:00Z'),
+			'Europe/London'
+		);
 		expect(pieces).toEqual([
 			{ until: Date.parse('2026-03-29T01:00:00Z'), offset: 0 },
 			{ until: Date.parse('2026-10-25T01:00:00Z'), offset: 3600 },
 			{ until: null, offset: 0 }
 		]);
-		expect(offsetPieces(Date.parse('2026-01-01T00:00:00Z'), Date.parse('2027-01-01T00:00:00Z'), 'Asia/Kolkata')).toEqual([
-			{ until: null, offset: 19800 }
-		]);
+		expect(
+			offsetPieces(
+				Date.parse('2026-01-01T00:00:00Z'),
+				Date.parse('2027-01-01T00:00:00Z'),
+				'Asia/Kolkata'
+			)
+		).toEqual([{ until: null, offset: 19800 }]);
 	});
 });
