@@ -115,8 +115,10 @@ export type ReportFacts = {
 	workDone: string | null;
 	recommendations: { grade: RecommendationGrade; text: string }[];
 	photos: ReportPhoto[];
-	/** The day of the report, `YYYY-MM-DD` (UTC). */
+	/** The day of the report, `YYYY-MM-DD`, in the workshop's time zone. */
 	date: string;
+	/** The workshop's IANA time zone: the report's dates and times are its local time (UTC when absent). */
+	timeZone?: string;
 };
 
 /** A finding's outcome in three words a customer reads: OK, out of spec, can't tell. */
@@ -147,6 +149,8 @@ export type ReportDoc = {
 	jobNumber: number;
 	date: string;
 	dateText: string;
+	/** "Dates and times are Europe/London time, where the workshop is." (absent on reports sent before zones). */
+	timeNote?: string;
 	workshop: { name: string; lines: string[] };
 	customerName: string | null;
 	vehicle: { heading: string; lines: string[] } | null;

@@ -7,6 +7,7 @@
  * with its unit, the maker's figure with its temperature, and the result in words). Each
  * circuit test (battery, charging, …) is one finding too (`circuit-words.ts`).
  */
+import { zoneWords } from '../zoned-time';
 import { normalizeUnit } from '../domain/units';
 import { specText, valueText } from './figures';
 import { circuitFinding, circuitTested } from './circuit-words';
@@ -273,6 +274,12 @@ export function dateText(day: string): string {
 	});
 }
 
+/** The line saying whose clock the report's dates and times follow. */
+export const timeNoteOf = (zone: string) =>
+	zone === 'UTC'
+		? 'Dates and times in this report are in UTC.'
+		: `Dates and times in this report are the workshop’s local time (${zoneWords(zone)}).`;
+
 /** The report in the customer's words. */
 export function buildReport(f: ReportFacts): ReportDoc {
 	const findings = [
@@ -310,6 +317,7 @@ export function buildReport(f: ReportFacts): ReportDoc {
 		jobNumber: f.jobNumber,
 		date: f.date,
 		dateText: dateText(f.date),
+		timeNote: timeNoteOf(f.timeZone ?? 'UTC'),
 		workshop: {
 			name: w.name,
 			lines: [w.address, w.phone ? `Phone ${w.phone}` : null, w.email ? `E-mail ${w.email}` : null].filter(

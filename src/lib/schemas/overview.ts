@@ -3,6 +3,7 @@
  * a date range of tests (UTC days, both ends included), a filter and a sort per table.
  */
 import { z } from 'zod';
+import { isoDayIn } from '../zoned-time';
 import { sortParam } from './common';
 
 const day = z
@@ -52,12 +53,13 @@ export const overviewCsvQuery = z.object({
 	delimiter: z.enum(['comma', 'semicolon']).default('comma')
 });
 
-/** The days of a query: its own, or the last `DEFAULT_DAYS` up to `today` (UTC). */
+/** The days of a query: its own, or the last `DEFAULT_DAYS` up to `today` (on the clocks of `zone`). */
 export function daysOf(
 	q: Pick<OverviewQuery, 'from' | 'to'>,
-	today = new Date()
+	today = new Date(),
+	zone = 'UTC'
 ): { from: string; to: string } {
-	const to = q.to ?? today.toISOString().slice(0, 10);
+	const to = q.to ?? isoDayIn(today, zone);
 	const back = new Date(Date.parse(`${to}T00:00:00Z`) - (DEFAULT_DAYS - 1) * 86_400_000);
 	return { from: q.from ?? back.toISOString().slice(0, 10), to };
 }

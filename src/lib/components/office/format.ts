@@ -1,21 +1,20 @@
-/** Display helpers for the office pages (dates in the browser's time zone). */
+/** Display helpers for the office pages: dates in the workshop's time zone (see `shown-zone.svelte.ts`). */
+import { dayIn, momentIn } from '$lib/zoned-time';
+import { shownZone } from './shown-zone.svelte';
 
-/** "3 Dec 2026" for an ISO date-time; '' for nothing. */
+const DATE_ONLY = /^\d{4}-\d{2}-\d{2}$/;
+
+/** "3 Dec 2026" for an ISO date-time (its day in the shown zone) or a `YYYY-MM-DD` day (as is); '' for nothing. */
 export function dayOf(iso: string | Date | null | undefined): string {
 	if (!iso) return '';
-	return new Date(iso).toLocaleDateString('en-GB', {
-		day: 'numeric',
-		month: 'short',
-		year: 'numeric',
-		timeZone: 'UTC'
-	});
+	if (typeof iso === 'string' && DATE_ONLY.test(iso)) return dayIn(`${iso}T12:00:00Z`, 'UTC');
+	return dayIn(iso, shownZone.zone);
 }
 
-/** "3 Dec 2026, 14:05 UTC" for an ISO date-time. */
+/** "3 Dec 2026, 15:05 BST" for an ISO date-time, in the shown zone, the zone named. */
 export function momentOf(iso: string | Date | null | undefined): string {
 	if (!iso) return '';
-	const d = new Date(iso);
-	return `${dayOf(d)}, ${d.toISOString().slice(11, 16)} UTC`;
+	return momentIn(iso, shownZone.zone);
 }
 
 /** "Corvane Brisel · TB24 KQL" */

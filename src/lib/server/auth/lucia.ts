@@ -43,6 +43,7 @@ type SessionRow = {
 	name: string | null;
 	role: string | null;
 	workshop_name: string | null;
+	time_zone: string | null;
 };
 
 export const sessionAdapter: Adapter = {
@@ -51,7 +52,7 @@ export const sessionAdapter: Adapter = {
 		const [row] = await db().query<SessionRow>(
 			`SELECT s.id, s.user_id,
 			        DATE_FORMAT(LEAST(s.expires_at, s.created_at + INTERVAL ${SESSION_MAX_DAYS} DAY), '%Y-%m-%dT%H:%i:%s.%fZ') AS expires_at,
-			        u.id AS uid, u.active, u.workshop_id, u.email, u.name, u.role, w.name AS workshop_name
+			        u.id AS uid, u.active, u.workshop_id, u.email, u.name, u.role, w.name AS workshop_name, w.time_zone
 			 FROM sessions s LEFT JOIN users u ON u.id = s.user_id LEFT JOIN workshops w ON w.id = u.workshop_id
 			 WHERE s.id = ?`,
 			{ replacements: [sessionId], type: QueryTypes.SELECT }
@@ -69,6 +70,7 @@ export const sessionAdapter: Adapter = {
 			attributes: {
 				workshopId: row.workshop_id!,
 				workshopName: row.workshop_name ?? '',
+				timeZone: row.time_zone ?? 'UTC',
 				email: row.email!,
 				name: row.name!,
 				role: row.role as SessionUser['role']
@@ -110,6 +112,7 @@ export const lucia = new Lucia(sessionAdapter, {
 	getUserAttributes: (a): Omit<SessionUser, 'id'> => ({
 		workshopId: a.workshopId,
 		workshopName: a.workshopName,
+		timeZone: a.timeZone,
 		email: a.email,
 		name: a.name,
 		role: a.role

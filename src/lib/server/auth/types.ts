@@ -5,6 +5,8 @@ export type SessionUser = {
 	id: string;
 	workshopId: string;
 	workshopName: string;
+	/** The workshop's IANA time zone (office pages, reports and mails show times in it); absent means UTC. */
+	timeZone?: string;
 	email: string;
 	name: string;
 	role: Role;

@@ -5,6 +5,7 @@
  * charging, …) with the workshop's result, who tested, and the workshop's
  * details. Everything is scoped to the actor's workshop.
  */
+import { isoDayIn } from '../../zoned-time';
 import { Op, QueryTypes } from 'sequelize';
 import { parseNumbers } from '../../sync/json';
 import type { ReportNotes } from '../../schemas/report';
@@ -203,7 +204,8 @@ export async function gatherFacts(
 		workDone: notes.workDone ?? null,
 		recommendations: notes.recommendations,
 		photos,
-		date: now.toISOString().slice(0, 10)
+		date: isoDayIn(now, settings.timeZone),
+		timeZone: settings.timeZone
 	};
 	return { facts, awaitingSignOff: all.length - tests.length + awaitingCircuits(circuitStates) };
 }

@@ -211,7 +211,8 @@ export async function renderReportPdf(r: ReportDoc, o: PdfOptions): Promise<Buff
 	}
 
 	heading(doc, 'Tested by');
-	write(doc, `${r.technicians}, ${r.workshop.name}, ${r.dateText}.`, { gap: 8 });
+	write(doc, `${r.technicians}, ${r.workshop.name}, ${r.dateText}.`, { gap: r.timeNote ? 2 : 8 });
+	if (r.timeNote) write(doc, r.timeNote, { size: 9, gap: 8 });
 
 	room(doc, 70);
 	const top = doc.y;

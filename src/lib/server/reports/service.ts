@@ -20,7 +20,8 @@ import { reportNotes, sendReport as sendSchema, type ReportNotes } from '../../s
 import { emailSubject, emailText } from '../../report/email';
 import type { Paper, ReportDoc, SentReport } from '../../report/types';
 export type { SentReport };
-import { buildReport, dateText } from '../../report/words';
+import { buildReport } from '../../report/words';
+import { longDayIn } from '../../zoned-time';
 import type { Actor } from '../auth/types';
 import { db } from '../db';
 import { writeAudit } from '../db/feed';
@@ -162,7 +163,7 @@ export async function sendReport(actor: Actor, jobId: string, input: unknown, ba
 				idempotencyKey: `report-${id}`,
 				to: recipient,
 				subject: emailSubject(doc),
-				text: emailText(doc, LINK_PLACEHOLDER, dateText(expiresAt.toISOString().slice(0, 10))),
+				text: emailText(doc, LINK_PLACEHOLDER, longDayIn(expiresAt, l.settings.timeZone)),
 				link,
 				createdBy: actor.userId
 			});

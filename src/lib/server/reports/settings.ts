@@ -15,6 +15,8 @@ import { mayChangeReportSettings } from './rules';
 
 export type ReportSettings = {
 	workshopName: string;
+	/** The workshop's IANA time zone (the report's day and times are its local time). */
+	timeZone: string;
 	address: string | null;
 	phone: string | null;
 	email: string | null;
@@ -34,6 +36,7 @@ export async function readReportSettings(workshopId: string, t?: Transaction): P
 	const w = await Workshop.findByPk(workshopId, { transaction: t });
 	return {
 		workshopName: w?.name ?? '',
+		timeZone: w?.timeZone ?? 'UTC',
 		address: (row?.address as string | null) ?? null,
 		phone: (row?.phone as string | null) ?? null,
 		email: (row?.email as string | null) ?? null,

@@ -20,7 +20,9 @@ import { readReportSettings, saveReportSettings } from '../reports/settings';
 export const DEMO_PASSWORD = 'bench-demo-2026';
 export const DEMO_WORKSHOP = {
 	id: '019a0000-0000-7000-8000-000000000001',
-	name: 'Tallow Bridge Auto Electrics'
+	name: 'Tallow Bridge Auto Electrics',
+	/** The invented workshop sits in an invented British town (Millbrook), so it keeps UK time. */
+	timeZone: 'Europe/London'
 };
 
 export const DEMO_USERS = [
@@ -279,7 +281,7 @@ export async function seedDemo(): Promise<number> {
 	db(); // registers the models
 	let made = 0;
 	if (await missing(Workshop, DEMO_WORKSHOP.id)) {
-		await createWorkshop(DEMO_WORKSHOP.name, DEMO_WORKSHOP.id);
+		await createWorkshop(DEMO_WORKSHOP.name, DEMO_WORKSHOP.id, DEMO_WORKSHOP.timeZone);
 		made++;
 	}
 	for (const u of DEMO_USERS) {

@@ -29,6 +29,9 @@ import type { Actor } from '../auth/types';
 import { db } from '../db';
 import { User } from '../db/models';
 import { ValidationError } from '../errors';
+import { sqlDateTime } from '../db/raw';
+import { offsetPieces, startOfDayIn } from '../../zoned-time';
+import { timeZoneOf } from './workshops';
 
 /** The SQL of both queries (kept here so the benchmark can EXPLAIN exactly these). */
 export const OVERVIEW_SQL = {
@@ -45,8 +48,9 @@ export const OVERVIEW_SQL = {
 		AND t.deleted_at IS NULL AND t.state <> 'abandoned'
 	GROUP BY t.part_number, t.technician_id, t.state, t.meter_name`,
 	leadZero: (
-		bucket: Bucket
-	) => `SELECT t.meter_name, ${PERIOD[bucket]} AS period, COUNT(*) AS tests,
+		bucket: Bucket,
+		local = 't.created_at'
+	) => `SELECT t.meter_name, ${PERIOD[bucket](local)} AS period, COUNT(*) AS tests,
 		AVG(t.lead_ohms) AS avg_ohms, MIN(t.lead_ohms) AS min_ohms, MAX(t.lead_ohms) AS max_ohms
 	FROM tests t
 	WHERE t.workshop_id = ? AND t.created_at >= ? AND t.created_at < ?
@@ -64,11 +68,26 @@ export const OVERVIEW_SQL = {
 	GROUP BY c.kind, c.created_by`
 };
 
-const PERIOD: Record<Bucket, string> = {
-	day: "DATE_FORMAT(t.created_at, '%Y-%m-%d')",
-	week: "DATE_FORMAT(DATE_SUB(DATE(t.created_at), INTERVAL WEEKDAY(t.created_at) DAY), '%Y-%m-%d')",
-	month: "DATE_FORMAT(t.created_at, '%Y-%m-01')"
+/** A period's key from `at`, the SQL of a test's time on the workshop's clock. */
+const PERIOD: Record<Bucket, (at: string) => string> = {
+	day: (at) => `DATE_FORMAT(${at}, '%Y-%m-%d')`,
+	week: (at) => `DATE_FORMAT(DATE_SUB(DATE(${at}), INTERVAL WEEKDAY(${at}) DAY), '%Y-%m-%d')`,
+	month: (at) => `DATE_FORMAT(${at}, '%Y-%m-01')`
 };
+
+/**
+ * The SQL of `t.created_at` on the clocks of the workshop's zone over the range: the UTC time
+ * plus the zone's offset, which changes at most at the instants `offsetPieces` finds (numbers
+ * and times computed here, never typed by a user). `t.created_at` itself for a zone on UTC.
+ */
+export function localTimeSql(startMs: number, endMs: number, zone: string): string {
+	const pieces = offsetPieces(startMs, endMs, zone);
+	if (pieces.length === 1) return pieces[0].offset ? `(t.created_at + INTERVAL ${pieces[0].offset} SECOND)` : 't.created_at';
+	const cases = pieces
+		.map((p) => (p.until === null ? `ELSE ${p.offset}` : `WHEN t.created_at < '${sqlDateTime(new Date(p.until))}' THEN ${p.offset}`))
+		.join(' ');
+	return `(t.created_at + INTERVAL (CASE ${cases} END) SECOND)`;
+}
 
 type GroupRow = {
 	part_number: string | null;
@@ -85,22 +104,28 @@ export function parseOverviewQuery(input: unknown): OverviewQuery {
 	return r.data;
 }
 
-/** The range's bounds as DATETIME text: from the first day's start to the day after the last. */
-export function boundsOf(q: Pick<OverviewQuery, 'from' | 'to'>, today = new Date()) {
-	const { from, to } = daysOf(q, today);
+/**
+ * The range's bounds as UTC DATETIME text: from the first day's start to the start of the day
+ * after the last, days on the clocks of `zone` (the workshop's).
+ */
+export function boundsOf(q: Pick<OverviewQuery, 'from' | 'to'>, today = new Date(), zone = 'UTC') {
+	const { from, to } = daysOf(q, today, zone);
 	if (from > to) throw new ValidationError({ from: 'The start is after the end' });
 	const after = new Date(Date.parse(`${to}T00:00:00Z`) + 86_400_000).toISOString().slice(0, 10);
-	return { from, to, start: `${from} 00:00:00.000`, end: `${after} 00:00:00.000` };
+	const startMs = startOfDayIn(from, zone);
+	const endMs = startOfDayIn(after, zone);
+	return { from, to, start: sqlDateTime(new Date(startMs)), end: sqlDateTime(new Date(endMs)), startMs, endMs };
 }
 
 /** The overview of the actor's workshop for a parsed query. */
 export async function readOverview(actor: Actor, q: OverviewQuery, today = new Date()) {
-	const { from, to, start, end } = boundsOf(q, today);
+	const zone = await timeZoneOf(actor.workshopId);
+	const { from, to, start, end, startMs, endMs } = boundsOf(q, today, zone);
 	const bucket = bucketFor(from, to);
 	const args = [actor.workshopId, start, end];
 	const [rows, leadRows, circuitRows, users] = await Promise.all([
 		db().query<GroupRow>(OVERVIEW_SQL.groups, { replacements: args, type: QueryTypes.SELECT }),
-		db().query<Record<string, unknown>>(OVERVIEW_SQL.leadZero(bucket), {
+		db().query<Record<string, unknown>>(OVERVIEW_SQL.leadZero(bucket, localTimeSql(startMs, endMs, zone)), {
 			replacements: args,
 			type: QueryTypes.SELECT
 		}),

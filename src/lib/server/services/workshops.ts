@@ -6,6 +6,8 @@ import { db } from '../db';
 import { writeAudit } from '../db/feed';
 import { ROLES, User, Workshop, type Role } from '../db/models';
 import { ValidationError } from '../errors';
+import { workshopTimeSchema } from '../../schemas/workshop-time';
+import { defaultTimeZone } from '../../zoned-time';
 import type { Actor } from '../auth/types';
 
 export const newUser = z.object({
@@ -18,10 +20,10 @@ export const newUser = z.object({
 	password: z.string().min(12, 'At least 12 characters').max(200)
 });
 
-/** Create a workshop and its change counter row. */
-export async function createWorkshop(name: string, id: string = uuidv7()) {
+/** Create a workshop and its change counter row; its time zone is the server's own unless given. */
+export async function createWorkshop(name: string, id: string = uuidv7(), timeZone = defaultTimeZone()) {
 	return db().transaction(async (t) => {
-		const w = await Workshop.create({ id, name }, { transaction: t });
+		const w = await Workshop.create({ id, name, timeZone }, { transaction: t });
 		await db().query('INSERT IGNORE INTO change_counters (workshop_id, last_seq) VALUES (?, 0)', {
 			replacements: [id],
 			transaction: t
@@ -84,4 +86,29 @@ export async function listUsers(workshopId: string) {
 export async function listPeople(workshopId: string) {
 	const rows = await User.findAll({ where: { workshopId }, attributes: ['id', 'name', 'role'], order: [['name', 'ASC']] });
 	return rows.map((u) => ({ id: u.id, name: u.name, role: u.role }));
+}
+
+/** The workshop's IANA time zone (`UTC` if the workshop is not found). */
+export async function timeZoneOf(workshopId: string): Promise<string> {
+	const w = await Workshop.findByPk(workshopId, { attributes: ['timeZone'] });
+	return w?.timeZone ?? 'UTC';
+}
+
+/**
+ * Change the workshop's time zone (`{ timeZone }`, checked by `workshopTimeSchema`); the caller
+ * checked the role. Audited with the old and new zone.
+ */
+export async function saveTimeZone(actor: Actor, input: unknown): Promise<string> {
+	const r = workshopTimeSchema.safeParse(input);
+	if (!r.success) throw ValidationError.fromZod(r.error);
+	return db().transaction(async (t) => {
+		const w = await Workshop.findByPk(actor.workshopId, { transaction: t, lock: t.LOCK.UPDATE });
+		if (!w) throw new ValidationError({ timeZone: 'This workshop is gone' });
+		const old = w.timeZone;
+		if (old !== r.data.timeZone) {
+			await w.update({ timeZone: r.data.timeZone }, { transaction: t });
+			await writeAudit(t, actor, 'workshop', w.id, 'update', [{ field: 'timeZone', old, new: r.data.timeZone }], null);
+		}
+		return r.data.timeZone;
+	});
 }

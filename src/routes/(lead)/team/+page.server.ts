@@ -2,13 +2,16 @@ import { fail } from '@sveltejs/kit';
 import { guardPage, LEADS } from '$lib/server/auth/guards';
 import { actorOf } from '$lib/server/auth/types';
 import { AppError, ValidationError } from '$lib/server/errors';
-import { createUser, listUsers } from '$lib/server/services/workshops';
+import { createUser, listUsers, saveTimeZone } from '$lib/server/services/workshops';
+import { momentIn, timeZoneNames } from '$lib/zoned-time';
 import { saveWindows, windowsOf } from '$lib/server/sync/scope';
 import { syncWindowsSchema } from '$lib/schemas/sync-settings';
 
 export async function load(event) {
 	const user = guardPage(event, LEADS);
-	return { users: await listUsers(user.workshopId), windows: await windowsOf(user.workshopId) };
+	const [users, windows] = await Promise.all([listUsers(user.workshopId), windowsOf(user.workshopId)]);
+	const timeZone = user.timeZone ?? 'UTC';
+	return { users, windows, timeZone, zones: timeZoneNames(), nowThere: momentIn(new Date(), timeZone) };
 }
 
 export const actions = {
@@ -47,5 +50,18 @@ export const actions = {
 		}
 		await saveWindows(user.workshopId, user.id, parsed.data);
 		return { windowsSaved: true };
+	},
+	/** The workshop's time zone: the office pages, reports and mails show times in it (leads and owners). */
+	timeZone: async (event) => {
+		const user = guardPage(event, LEADS);
+		const data = await event.request.formData();
+		const timeZone = String(data.get('timeZone') ?? '');
+		try {
+			await saveTimeZone(actorOf(user), { timeZone });
+		} catch (e) {
+			if (e instanceof ValidationError) return fail(400, { zoneValue: timeZone, zoneField: e.fields.timeZone ?? e.message });
+			throw e;
+		}
+		return { zoneSaved: timeZone };
 	}
 };

@@ -6,6 +6,7 @@ import { paymentsConfigured } from '$lib/server/payments/provider';
 import { db } from '$lib/server/db';
 import { QueryTypes } from 'sequelize';
 import { formatMoney } from '$lib/money';
+import { timeZoneOf } from '$lib/server/services/workshops';
 
 /** The customer's quote by its link; no sign-in (the unguessable token is the key). */
 export async function load({ params, setHeaders, url }) {
@@ -17,6 +18,7 @@ export async function load({ params, setHeaders, url }) {
 		if (e instanceof AppError && (e.status === 404 || e.status === 410)) error(e.status, e.message);
 		throw e;
 	}
+	const timeZone = await timeZoneOf(q.workshopId);
 	const [paid] = await db().query<{ n: number; paid: string | number | null; refunded: string | number | null }>(
 		`SELECT COUNT(*) AS n, SUM(amount_minor) AS paid, SUM(refunded_minor) AS refunded FROM payments
 		 WHERE workshop_id = ? AND quote_id = ? AND state IN ('paid', 'refunded')`,
@@ -27,6 +29,7 @@ export async function load({ params, setHeaders, url }) {
 	return {
 		shown: q.shown,
 		expiresAt: q.expiresAt.toISOString(),
+		timeZone,
 		answer: q.answer ? { ...q.answer, at: q.answer.at.toISOString() } : null,
 		closed: q.closed,
 		paid: Number(paid?.n ?? 0) > 0,

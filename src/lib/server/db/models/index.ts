@@ -17,6 +17,8 @@ export { ROLES, type Role };
 export class Workshop extends Model {
 	declare id: string;
 	declare name: string;
+	/** IANA zone name (`Europe/London`); office pages, reports and mails show times in it. */
+	declare timeZone: CreationOptional<string>;
 	declare createdAt: CreationOptional<Date>;
 	declare updatedAt: CreationOptional<Date>;
 }
@@ -213,7 +215,7 @@ export function initModels(s: Sequelize): void {
 	initTest(s, syncAttrs);
 	initQuote(s, syncAttrs);
 	const base = { sequelize: s, underscored: true };
-	Workshop.init({ id: a.uuidPk, name: str(120) }, { ...base, tableName: 'workshops' });
+	Workshop.init({ id: a.uuidPk, name: str(120), timeZone: { type: DataTypes.STRING(64), allowNull: false, defaultValue: 'UTC' } }, { ...base, tableName: 'workshops' });
 	User.init(
 		{
 			id: a.uuidPk,
