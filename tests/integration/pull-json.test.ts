@@ -17,6 +17,7 @@ import { db } from '../../src/lib/server/db';
 import { APPEND_TABLES, JSON_COLUMNS, appendRecord } from '../../src/lib/server/db/append-tables';
 import { rawRows } from '../../src/lib/server/db/raw';
 import { jobs } from '../../src/lib/server/services/jobs';
+import { tests as testRecords } from '../../src/lib/server/services/tests';
 import { lastSeq } from '../../src/lib/server/sync/pull';
 import { appendWriter, pageJson } from '../../src/lib/server/sync/pull-json';
 import { stringifyNumbers } from '../../src/lib/sync/json';
@@ -36,13 +37,14 @@ const JSON_VARIANTS = [
 type Column = { name: string; dataType: string; columnType: string; length: number | null; nullable: boolean };
 
 /** A value for one column in variant 0 (nullable columns empty), 1 or 2. */
-function valueOf(c: Column, v: number, ids: { workshop: string; job: string; user: string }, seq: number): unknown {
+function valueOf(c: Column, v: number, ids: { workshop: string; job: string; test: string; user: string }, seq: number): unknown {
 	if (c.name === 'id' || c.name === 'op_id') return uuidv7();
 	if (c.name === 'workshop_id') return ids.workshop;
 	if (c.name === 'job_id') return ids.job;
 	if (c.name === 'seq') return seq;
 	if (v === 0 && c.nullable) return null;
 	if (c.name === 'created_by') return ids.user;
+	if (c.name === 'test_id') return ids.test; // a real test: other suites check every reading has one
 	if (JSON_COLUMNS.has(c.name)) return JSON_VARIANTS[v % 2];
 	switch (c.dataType) {
 		case 'uuid':
@@ -101,7 +103,8 @@ describe('the pull written as text', () => {
 		w = await makeWorkshop('Pull text');
 		jobId = (await jobs.create(w.users.lead.actor, { complaint: 'Charge light stays on', assigneeId: w.users.technician.id })).id as string;
 		before = await lastSeq(w.workshop.id);
-		const ids = { workshop: w.workshop.id, job: jobId, user: w.users.technician.id };
+		const testId = (await testRecords.create(w.users.lead.actor, { jobId })).id as string;
+		const ids = { workshop: w.workshop.id, job: jobId, test: testId, user: w.users.technician.id };
 		for (const table of Object.values(APPEND_TABLES)) {
 			const cols = await columnsOf(table);
 			for (let v = 0; v < 3; v++) {
