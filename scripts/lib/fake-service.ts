@@ -12,6 +12,7 @@ import { spawn } from 'node:child_process';
 import { existsSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { freePort, ROOT } from './mariadb';
+import { alive, readPid } from './pid';
 
 const DATA = path.join(ROOT, '.data');
 
@@ -24,25 +25,14 @@ export const fakeFiles = (kind: string, name: string): FakeFiles => ({
 	port: path.join(DATA, `${kind}-${name}.port`)
 });
 
-/** The number in `file`, or null when there is none. */
-const readNumber = (file: string) => (existsSync(file) ? Number(readFileSync(file, 'utf8').trim()) || null : null);
-
-/** Whether process `pid` runs (a zombie does not). */
-function alive(pid: number): boolean {
-	try {
-		process.kill(pid, 0);
-		return !/^\d+ \(.*\) Z/.test(readFileSync(`/proc/${pid}/stat`, 'utf8'));
-	} catch {
-		return false;
-	}
-}
+/** The port in `file`, or null when there is none. */
+const readPort = (file: string) => (existsSync(file) ? Number(readFileSync(file, 'utf8').trim()) || null : null);
 
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
 /** The port of the running fake recorded in `files`, or null. */
 export function runningFakePort(files: FakeFiles): number | null {
-	const pid = readNumber(files.pid);
-	return pid && alive(pid) ? readNumber(files.port) : null;
+	return alive(readPid(files.pid)) ? readPort(files.port) : null;
 }
 
 export type FakeService = {
@@ -92,7 +82,7 @@ export async function startFake(
  * port file too when `forgetPort`. Resolves to whether it was running.
  */
 export async function stopFake(files: FakeFiles, forgetPort: boolean): Promise<boolean> {
-	const pid = readNumber(files.pid);
+	const pid = readPid(files.pid);
 	let stopped = false;
 	if (pid && alive(pid)) {
 		process.kill(pid, 'SIGTERM');
