@@ -3,6 +3,7 @@ import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { CHROMIUM_ARGS } from '../../scripts/lib/chromium';
 
 export const PHONE = { width: 390, height: 844 };
 export const SHOTS = path.resolve('screenshots');
@@ -21,15 +22,7 @@ export async function openPhone(): Promise<{
 		deviceScaleFactor: 2,
 		isMobile: true,
 		hasTouch: true,
-		args: [
-			'--no-sandbox',
-			'--disable-gpu',
-			'--disable-quic',
-			'--no-first-run',
-			'--disable-background-networking',
-			'--disable-component-update',
-			'--disable-sync'
-		]
+		args: CHROMIUM_ARGS
 	});
 	const page = context.pages()[0] ?? (await context.newPage());
 	const errors: string[] = []; // uncaught errors in the page (a failed hydration shows here)
