@@ -3,6 +3,7 @@ import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { afterAll, afterEach, beforeAll, expect } from 'vitest';
 import { CHROMIUM_ARGS } from '../../scripts/lib/chromium';
 
 export const PHONE = { width: 390, height: 844 };
@@ -35,6 +36,41 @@ export async function openPhone(): Promise<{
 			await context.close();
 			rmSync(profile, { recursive: true, force: true });
 		}
+	};
+}
+
+type Phone = Awaited<ReturnType<typeof openPhone>>;
+
+/**
+ * One phone for the tests of a file: opened before them and closed after them; each test
+ * fails on an uncaught error in the page. Its fields can be read once the tests run.
+ */
+export function phoneForFile(): Phone {
+	let phone: Phone | null = null;
+	const opened = () => {
+		if (!phone) throw new Error('The phone opens before the first test.');
+		return phone;
+	};
+	beforeAll(async () => {
+		phone = await openPhone();
+	});
+	afterEach(() => {
+		expect(opened().errors, 'uncaught errors in the page').toEqual([]);
+	});
+	afterAll(async () => {
+		await phone?.close();
+	});
+	return {
+		get context() {
+			return opened().context;
+		},
+		get page() {
+			return opened().page;
+		},
+		get errors() {
+			return opened().errors;
+		},
+		close: () => opened().close()
 	};
 }
 
