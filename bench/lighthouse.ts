@@ -35,6 +35,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { chromium, type BrowserContext, type Page, type Response } from 'playwright-core';
 import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../scripts/lib/app';
+import { CHROMIUM_ARGS } from '../scripts/lib/chromium';
 import {
 	ROOT,
 	dbEnv,
@@ -54,14 +55,8 @@ const TECH = 'tech@tallowbridge.example';
 const GOALS = { performance: 0.95, accessibility: 1, jsKB: 100 };
 
 /** The same switches as the end-to-end tests, plus a cookie store that does not need a keyring. */
-const CHROMIUM_ARGS = [
-	'--no-sandbox',
-	'--disable-gpu',
-	'--disable-quic',
-	'--no-first-run',
-	'--disable-background-networking',
-	'--disable-component-update',
-	'--disable-sync',
+const LH_CHROMIUM_ARGS = [
+	...CHROMIUM_ARGS,
 	'--password-store=basic',
 	'--use-mock-keychain'
 ];
@@ -131,7 +126,7 @@ async function prepare(profile: string, base: string) {
 		executablePath: CHROMIUM,
 		headless: true,
 		viewport: { width: 390, height: 844 },
-		args: CHROMIUM_ARGS
+		args: LH_CHROMIUM_ARGS
 	});
 	try {
 		const page = context.pages()[0] ?? (await context.newPage());
@@ -180,7 +175,7 @@ async function launchForLighthouse(
 		CHROMIUM,
 		[
 			'--headless=new',
-			...CHROMIUM_ARGS,
+			...LH_CHROMIUM_ARGS,
 			`--user-data-dir=${profile}`,
 			`--remote-debugging-port=${port}`,
 			'--remote-debugging-address=127.0.0.1',
@@ -457,7 +452,7 @@ async function chromiumVersion(): Promise<string> {
 	const b = await chromium.launch({
 		executablePath: CHROMIUM,
 		headless: true,
-		args: CHROMIUM_ARGS
+		args: LH_CHROMIUM_ARGS
 	});
 	const v = b.version();
 	await b.close();

@@ -25,14 +25,9 @@ import os from 'node:os';
 import mariadb from 'mariadb';
 import { QueryTypes } from 'sequelize';
 import { v7 as uuidv7 } from 'uuid';
-import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../scripts/lib/app';
-import {
-	dbEnv,
-	dropDatabase,
-	ensureDatabase,
-	startServer,
-	stopServer
-} from '../scripts/lib/mariadb';
+import { buildIfNeeded, freePort, serve, stopServe } from '../scripts/lib/app';
+import { COIL_CHECKS, prng } from './lib/workload';
+import { benchMariaDb, freshBenchDatabase } from './lib/setup';
 import { Client } from '../tests/helpers/http';
 import {
 	evaluateReading,
@@ -52,34 +47,6 @@ const GOAL_MS = 300;
 const PER_TEST = 8; // four cylinders, two checks
 const POSITIONS = ['1', '2', '3', '4'];
 
-/** Invented coil figures: a two-band primary and a secondary winding (base units). */
-const CHECKS = [
-	{
-		key: 'primary',
-		label: 'Primary winding',
-		quantity: 'resistance',
-		from: '1',
-		to: '2',
-		condition: 'key_off',
-		unit: 'Ω',
-		openOk: false,
-		bands: [
-			{ fromC: null, toC: 50, min: 0.4, max: 0.6 },
-			{ fromC: 50, toC: null, min: 0.5, max: 0.7 }
-		]
-	},
-	{
-		key: 'secondary',
-		label: 'Secondary winding',
-		quantity: 'resistance',
-		from: '1',
-		to: 'HT',
-		condition: 'key_off',
-		unit: 'kΩ',
-		openOk: false,
-		bands: [{ fromC: null, toC: null, min: 5000, max: 8000 }]
-	}
-];
 /** Invented meters: names, a fine and a coarse range, a lead zero that creeps up over time. */
 const METERS = Array.from({ length: 8 }, (_, i) => ({
 	name: `Bench meter ${i + 1}`,
@@ -92,14 +59,6 @@ const METERS = Array.from({ length: 8 }, (_, i) => ({
 	drift: i === 2 ? 0.15 : 0.02 // ohms per year; meter 3's leads wear out
 }));
 
-function prng(seed: number) {
-	return () => {
-		seed = (seed + 0x6d2b79f5) | 0;
-		let t = Math.imul(seed ^ (seed >>> 15), 1 | seed);
-		t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
 const pct = (sorted: number[], p: number) =>
 	sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)];
 const ms = (n: number) => n.toFixed(1);
@@ -109,16 +68,12 @@ const day = (t: number) => new Date(t).toISOString().slice(0, 10);
 type Env = Record<string, string>;
 
 async function main() {
-	const { port, started } = await startServer();
+	const mariaDb = await benchMariaDb();
 	let app: ChildProcess | null = null;
 	let closeDb: (() => Promise<void>) | null = null;
 	let failed = false;
 	try {
-		dropDatabase(DB_NAME);
-		ensureDatabase(DB_NAME);
-		const env: Env = dbEnv(port, DB_NAME);
-		Object.assign(process.env, env);
-		await migrate();
+		const env: Env = await freshBenchDatabase(mariaDb.port, DB_NAME);
 		const dbMod = await import('../src/lib/server/db');
 		closeDb = dbMod.closeDb;
 		const { createUser, createWorkshop } = await import('../src/lib/server/services/workshops');
@@ -167,7 +122,7 @@ async function main() {
 				const partNumber = `LX-${String(1000 + i * 37)}-${tag.slice(-3)}`;
 				const componentId = (await components.create(actor, { partNumber, kind: 'ignition_coil' }))
 					.id as string;
-				const draft = await sheets.create(actor, { componentId, checks: CHECKS });
+				const draft = await sheets.create(actor, { componentId, checks: COIL_CHECKS });
 				await sheets.update(
 					actor,
 					draft.id as string,
@@ -251,7 +206,7 @@ async function main() {
 					const faulty = rnd() < part.failP ? POSITIONS[Math.floor(rnd() * 4)] : null;
 					const sum = [0, 0, 0, 0, 0, 0];
 					for (const position of POSITIONS) {
-						for (const check of CHECKS as CheckSpec[]) {
+						for (const check of COIL_CHECKS as CheckSpec[]) {
 							if (stored >= readings) break;
 							const primary = check.key === 'primary';
 							const nominal = primary ? 0.5 + lead0 : 6500;
@@ -472,7 +427,7 @@ async function main() {
 	} finally {
 		if (app) stopServe(app);
 		if (closeDb) await closeDb();
-		if (started && !process.env.FIELDBENCH_KEEP_DB) await stopServer();
+		await mariaDb.stop();
 	}
 	process.exit(failed ? 1 : 0);
 }

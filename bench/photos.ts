@@ -22,9 +22,10 @@ import { PutObjectCommand } from '@aws-sdk/client-s3';
 import { QueryTypes } from 'sequelize';
 import sharp from 'sharp';
 import { v7 as uuidv7 } from 'uuid';
-import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../scripts/lib/app';
-import { dbEnv, dropDatabase, ensureDatabase, startServer, stopServer } from '../scripts/lib/mariadb';
+import { buildIfNeeded, freePort, serve, stopServe } from '../scripts/lib/app';
+import { dropDatabase, startServer, stopServer } from '../scripts/lib/mariadb';
 import { s3Env, startS3Server, stopS3Server } from '../scripts/lib/s3';
+import { freshBenchDatabase } from './lib/setup';
 import { Client } from '../tests/helpers/http';
 
 const DB_NAME = 'fieldbench_bench_photos';
@@ -53,11 +54,7 @@ async function inParallel<T>(items: T[], fn: (item: T) => Promise<void>) {
 }
 
 const { port: dbPort, started } = await startServer();
-dropDatabase(DB_NAME);
-ensureDatabase(DB_NAME);
-const env = dbEnv(dbPort, DB_NAME);
-Object.assign(process.env, env);
-await migrate();
+const env = await freshBenchDatabase(dbPort, DB_NAME);
 buildIfNeeded();
 const store = await startS3Server(S3_NAME);
 Object.assign(process.env, s3Env(store.port));

@@ -36,8 +36,8 @@ import zlib from 'node:zlib';
 import mariadb from 'mariadb';
 import { QueryTypes } from 'sequelize';
 import { v7 as uuidv7 } from 'uuid';
-import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../scripts/lib/app';
-import { dbEnv, dropDatabase, ensureDatabase, startServer, stopServer } from '../scripts/lib/mariadb';
+import { buildIfNeeded, freePort, serve, stopServe } from '../scripts/lib/app';
+import { benchMariaDb, freshBenchDatabase, stopOnInterrupt } from './lib/setup';
 import { Client } from '../tests/helpers/http';
 import { PHONE_PULL_LIMIT } from '../src/lib/sync/protocol';
 
@@ -121,24 +121,13 @@ async function wireBytes(c: Client, base: string): Promise<{ bytes: number; enco
 }
 
 async function main() {
-	const { port, started } = await startServer();
+	const mariaDb = await benchMariaDb();
 	const apps: ChildProcess[] = [];
-	for (const signal of ['SIGINT', 'SIGTERM'] as const) {
-		process.once(signal, () => {
-			for (const a of apps) stopServe(a);
-			const done = () => process.exit(130);
-			if (started && !process.env.FIELDBENCH_KEEP_DB) stopServer().then(done, done);
-			else done();
-		});
-	}
+	stopOnInterrupt(apps, mariaDb);
 	let pool: mariadb.Pool | null = null;
 	let closeDb: (() => Promise<void>) | null = null;
 	try {
-		dropDatabase(DB_NAME);
-		ensureDatabase(DB_NAME);
-		const env = dbEnv(port, DB_NAME);
-		Object.assign(process.env, env);
-		await migrate();
+		const env = await freshBenchDatabase(mariaDb.port, DB_NAME);
 		buildIfNeeded();
 		const served = await serve(await freePort(4700), { ...env, ADDRESS_HEADER: 'x-forwarded-for' }, 'inherit');
 		apps.push(served.child);
@@ -324,7 +313,7 @@ async function main() {
 		if (pool) await pool.end();
 		if (closeDb) await closeDb();
 		for (const a of apps) stopServe(a);
-		if (started && !process.env.FIELDBENCH_KEEP_DB) await stopServer();
+		await mariaDb.stop();
 	}
 }
 

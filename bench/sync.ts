@@ -44,15 +44,10 @@ import path from 'node:path';
 import mariadb from 'mariadb';
 import { QueryTypes } from 'sequelize';
 import { v7 as uuidv7 } from 'uuid';
-import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../scripts/lib/app';
-import {
-	ROOT,
-	dbEnv,
-	dropDatabase,
-	ensureDatabase,
-	startServer,
-	stopServer
-} from '../scripts/lib/mariadb';
+import { buildIfNeeded, freePort, serve, stopServe } from '../scripts/lib/app';
+import { ROOT } from '../scripts/lib/mariadb';
+import { COIL_CHECKS, prng } from './lib/workload';
+import { benchMariaDb, freshBenchDatabase, stopOnInterrupt } from './lib/setup';
 import { Client } from '../tests/helpers/http';
 import { PUSH_BATCH } from '../src/lib/sync/protocol';
 import {
@@ -71,34 +66,6 @@ const ROUNDS = Math.max(1, Number(process.env.BENCH_ROUNDS ?? 5));
 const PASSWORD = 'bench-password-2026';
 const GOAL = 0.5;
 
-/** Invented figures: an ignition coil with a two-band primary and a secondary winding. */
-const CHECKS = [
-	{
-		key: 'primary',
-		label: 'Primary winding',
-		quantity: 'resistance',
-		from: '1',
-		to: '2',
-		condition: 'key_off',
-		unit: 'Ω',
-		openOk: false,
-		bands: [
-			{ fromC: null, toC: 50, min: 0.4, max: 0.6 },
-			{ fromC: 50, toC: null, min: 0.5, max: 0.7 }
-		]
-	},
-	{
-		key: 'secondary',
-		label: 'Secondary winding',
-		quantity: 'resistance',
-		from: '1',
-		to: 'HT',
-		condition: 'key_off',
-		unit: 'kΩ',
-		openOk: false,
-		bands: [{ fromC: null, toC: null, min: 5000, max: 8000 }]
-	}
-];
 /** An invented meter: a 200 Ω range for the primary, a 20 kΩ range for the secondary. */
 const METER = {
 	name: 'Bench meter',
@@ -123,16 +90,6 @@ type Op = {
 };
 type Batch = { device: number; deviceId: string; ops: Op[]; body: string };
 type Result = { opId: string; status: string; firstStatus?: string; reason?: string };
-
-/** A small deterministic PRNG (mulberry32) so every run sends the same kind of values. */
-function prng(seed: number) {
-	return () => {
-		seed = (seed + 0x6d2b79f5) | 0;
-		let t = Math.imul(seed ^ (seed >>> 15), 1 | seed);
-		t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
 
 const percentile = (sorted: number[], p: number) =>
 	sorted.length
@@ -309,25 +266,13 @@ async function main() {
 		if (!ok) failures.push(what);
 		return ok;
 	};
-	const { port, started } = await startServer();
+	const mariaDb = await benchMariaDb();
 	const apps: ChildProcess[] = [];
-	// Interrupted: stop the app servers (their own process groups), and MariaDB if ours.
-	for (const signal of ['SIGINT', 'SIGTERM'] as const) {
-		process.once(signal, () => {
-			for (const a of apps) stopServe(a);
-			const done = () => process.exit(130);
-			if (started && !process.env.FIELDBENCH_KEEP_DB) stopServer().then(done, done);
-			else done();
-		});
-	}
+	stopOnInterrupt(apps, mariaDb);
 	let pool: mariadb.Pool | null = null;
 	let closeDb: (() => Promise<void>) | null = null;
 	try {
-		dropDatabase(DB_NAME);
-		ensureDatabase(DB_NAME);
-		const env = dbEnv(port, DB_NAME);
-		Object.assign(process.env, env);
-		await migrate();
+		const env = await freshBenchDatabase(mariaDb.port, DB_NAME);
 		buildIfNeeded();
 		const served = await serve(
 			await freePort(4600),
@@ -372,7 +317,7 @@ async function main() {
 			const componentId = (
 				await components.create(leadActor, { partNumber: `BX-${tag}`, kind: 'ignition_coil' })
 			).id as string;
-			const draft = await sheets.create(leadActor, { componentId, checks: CHECKS });
+			const draft = await sheets.create(leadActor, { componentId, checks: COIL_CHECKS });
 			const sheetId = draft.id as string;
 			await sheets.update(
 				leadActor,
@@ -660,7 +605,7 @@ async function main() {
 		if (pool) await pool.end();
 		if (closeDb) await closeDb();
 		for (const a of apps) stopServe(a);
-		if (started && !process.env.FIELDBENCH_KEEP_DB) await stopServer();
+		await mariaDb.stop();
 	}
 	if (failures.length) process.exitCode = 1;
 }

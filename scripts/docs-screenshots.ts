@@ -9,7 +9,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { chromium } from 'playwright-core';
 import { DEMO_PASSWORD, DEMO_USERS } from '../src/lib/server/seed/demo';
-import { chromiumPath } from './lib/chromium';
+import { CHROMIUM_ARGS, chromiumPath } from './lib/chromium';
 import { ROOT } from './lib/mariadb';
 
 const base = (process.argv[2] ?? 'http://localhost:3000').replace(/\/$/, '');
@@ -24,15 +24,7 @@ const context = await chromium.launchPersistentContext(profile, {
 	deviceScaleFactor: 2,
 	isMobile: true,
 	hasTouch: true,
-	args: [
-		'--no-sandbox',
-		'--disable-gpu',
-		'--disable-quic',
-		'--no-first-run',
-		'--disable-background-networking',
-		'--disable-component-update',
-		'--disable-sync'
-	]
+	args: CHROMIUM_ARGS
 });
 try {
 	const page = context.pages()[0] ?? (await context.newPage());

@@ -18,6 +18,21 @@ import { execFileSync } from 'node:child_process';
 export const DEBIAN_CHROMIUM = '/usr/bin/chromium';
 export const INSTALL_COMMAND = 'apt-get update && apt-get install -y chromium';
 
+/**
+ * The switches every headless Chromium of the project starts with (the end-to-end tests, the
+ * README's screenshots, the Lighthouse bench): no sandbox (containers, root), no GPU, no QUIC,
+ * and none of the browser's own background traffic.
+ */
+export const CHROMIUM_ARGS = [
+	'--no-sandbox',
+	'--disable-gpu',
+	'--disable-quic',
+	'--no-first-run',
+	'--disable-background-networking',
+	'--disable-component-update',
+	'--disable-sync'
+];
+
 /** What `ensureChromium` needs from the machine; the tests pass their own. */
 export interface Machine {
 	/** Whether `path` is an executable file. */

@@ -31,6 +31,7 @@ import path from 'node:path';
 import { mailEnv, startMailServer, stopMailServer } from './mail';
 import { s3Env, startS3Server, stopS3Server } from './s3';
 import { APP_PASSWORD, APP_USER, freePort, portFree, ROOT } from './mariadb';
+import { alive, readPid } from './pid';
 
 export const CLUSTER_DIR = path.join(ROOT, '.data', 'cluster');
 const STATE = path.join(CLUSTER_DIR, 'state.json');
@@ -164,22 +165,6 @@ function writeNodeCnf(s: ClusterState, i: number) {
 			''
 		].join('\n')
 	);
-}
-
-function readPid(file: string): number | null {
-	if (!existsSync(file)) return null;
-	const pid = Number(readFileSync(file, 'utf8').trim());
-	return Number.isInteger(pid) && pid > 0 ? pid : null;
-}
-
-function alive(pid: number | null): boolean {
-	if (!pid) return false;
-	try {
-		process.kill(pid, 0);
-		return !/^\d+ \(.*\) Z/.test(readFileSync(`/proc/${pid}/stat`, 'utf8'));
-	} catch {
-		return false;
-	}
 }
 
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));

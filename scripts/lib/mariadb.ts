@@ -18,6 +18,7 @@ import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import net from 'node:net';
 import path from 'node:path';
+import { alive, readPid } from './pid';
 
 export const ROOT = path.resolve(import.meta.dirname, '..', '..');
 const DATA = path.join(ROOT, '.data');
@@ -117,25 +118,10 @@ function ping(): boolean {
 	return r.status === 0;
 }
 
-function readPid(): number | null {
-	if (!existsSync(PID_FILE)) return null;
-	const pid = Number(readFileSync(PID_FILE, 'utf8').trim());
-	return Number.isInteger(pid) && pid > 0 ? pid : null;
-}
-
-function alive(pid: number): boolean {
-	try {
-		process.kill(pid, 0);
-		const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
-		return !/^\d+ \(.*\) Z/.test(stat); // a zombie is not alive
-	} catch {
-		return false;
-	}
-}
 
 /** Port of the running private server, or null. */
 export function runningPort(): number | null {
-	const pid = readPid();
+	const pid = readPid(PID_FILE);
 	if (!pid || !alive(pid) || !existsSync(PORT_FILE)) return null;
 	return Number(readFileSync(PORT_FILE, 'utf8').trim());
 }
@@ -156,7 +142,7 @@ export async function startServer(): Promise<{ port: number; started: boolean }>
 			return { port: existing, started: false };
 		}
 	}
-	const stale = readPid();
+	const stale = readPid(PID_FILE);
 	if (stale && !alive(stale)) rmSync(PID_FILE, { force: true });
 
 	const port = await freePort(DEFAULT_PORT);

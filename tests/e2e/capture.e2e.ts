@@ -7,24 +7,15 @@
  * limit of error for the reading plus the lead reading's (worst case, common practice).
  */
 import { QueryTypes, Sequelize } from 'sequelize';
-import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
-import { openPhone, shot, signInAs } from './browser';
+import { describe, expect, inject, it } from 'vitest';
+import { phoneForFile, shot, signInAs } from './browser';
 import { typeOnKeypad } from './phone-steps';
 
 const base = inject('baseURL');
 const JOB = '019a0000-0000-7000-8000-000000000301';
-let phone: Awaited<ReturnType<typeof openPhone>>;
 let testUrl = '';
 
-beforeAll(async () => {
-	phone = await openPhone();
-});
-afterEach(() => {
-	expect(phone.errors, 'uncaught errors in the page').toEqual([]);
-});
-afterAll(async () => {
-	await phone?.close();
-});
+const phone = phoneForFile();
 
 const type = (text: string) => typeOnKeypad(phone.page, text);
 

@@ -6,23 +6,14 @@
  * `flow/circuit.ts` with their sources (Battery Council International rest-voltage table, the
  * load-test table of makers' information, common-practice limits).
  */
-import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
+import { describe, expect, inject, it } from 'vitest';
 import { axeViolations } from './axe';
-import { openPhone, shot, signInAs } from './browser';
+import { phoneForFile, shot, signInAs } from './browser';
 
 const base = inject('baseURL');
 const JOB = '019a0000-0000-7000-8000-000000000304';
-let phone: Awaited<ReturnType<typeof openPhone>>;
 
-beforeAll(async () => {
-	phone = await openPhone();
-});
-afterEach(() => {
-	expect(phone.errors, 'uncaught errors in the page').toEqual([]);
-});
-afterAll(async () => {
-	await phone?.close();
-});
+const phone = phoneForFile();
 
 const page = () => phone.page;
 const fill = (label: string, value: string) => page().getByRole('textbox', { name: label }).first().fill(value);

@@ -2,20 +2,12 @@
 import type { ChildProcess } from 'node:child_process';
 import type { TestProject } from 'vitest/node';
 import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../../scripts/lib/app';
-import { mailEnv, startMailServer, stopMailServer } from '../../scripts/lib/mail';
-import { payEnv, startPayServer, stopPayServer } from '../../scripts/lib/pay';
-import { s3Env, startS3Server, stopS3Server } from '../../scripts/lib/s3';
 import { finish, freshDatabase } from '../helpers/database';
+import { startFakes, stopFakes } from '../helpers/fakes';
 
 let child: ChildProcess | null = null;
-/** This runner's own fake mail server (its messages in .data/mail/<name>/). */
-const MAIL_NAME = `e2e-${process.pid}`;
-/** This runner's own fake payment provider. */
-const PAY_NAME = `e2e-${process.pid}`;
-/** This runner's own fake photo store (its objects in .data/s3/<name>/). */
-const S3_NAME = `e2e-${process.pid}`;
-/** E-mail looked at often and retried soon, so the tests do not wait long. */
-const FAST_MAIL = { MAIL_POLL_MS: '500', MAIL_RETRY_BASE_MS: '300', MAIL_MAX_ATTEMPTS: '8' };
+/** This runner's own fakes (mail in .data/mail/<name>/, photos in .data/s3/<name>/, payments). */
+const FAKES = `e2e-${process.pid}`;
 let created: Awaited<ReturnType<typeof freshDatabase>> | null = null;
 
 export async function setup(project: TestProject) {
@@ -28,12 +20,10 @@ export async function setup(project: TestProject) {
 	await seedDemo();
 	await closeDb();
 	buildIfNeeded();
-	const mail = await startMailServer(MAIL_NAME);
-	project.provide('mail', { name: MAIL_NAME, port: mail.port, dir: mail.dir });
-	const store = await startS3Server(S3_NAME);
 	const port = await freePort(4300);
-	const pay = await startPayServer(PAY_NAME, `http://127.0.0.1:${port}/api/pay/webhook`);
-	const s = await serve(port, { ...db.env, ...mailEnv(mail.port, mail.dir), ...FAST_MAIL, ...s3Env(store.port), ...payEnv(pay.url) }, 'ignore');
+	const fakes = await startFakes(FAKES, port);
+	project.provide('mail', { name: FAKES, port: fakes.mail.port, dir: fakes.mail.dir });
+	const s = await serve(port, { ...db.env, ...fakes.env }, 'ignore');
 	child = s.child;
 	project.provide('baseURL', s.url);
 	project.provide('dbEnv', db.env);
@@ -41,8 +31,6 @@ export async function setup(project: TestProject) {
 
 export async function teardown() {
 	if (child) stopServe(child);
-	await stopMailServer(MAIL_NAME, true);
-	await stopPayServer(PAY_NAME);
-	await stopS3Server(S3_NAME, true);
+	await stopFakes(FAKES);
 	await finish(created);
 }

@@ -4,22 +4,13 @@
  * Other end-to-end files share this database, so the part number is unique per run and no
  * count is assumed. Figures are invented.
  */
-import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
-import { openPhone, shot, signInAs } from './browser';
+import { describe, expect, inject, it } from 'vitest';
+import { phoneForFile, shot, signInAs } from './browser';
 
 const base = inject('baseURL');
 const PART = `E2E-CP-${Date.now().toString(36).toUpperCase()}`;
-let phone: Awaited<ReturnType<typeof openPhone>>;
 
-beforeAll(async () => {
-	phone = await openPhone();
-});
-afterEach(() => {
-	expect(phone.errors, 'uncaught errors in the page').toEqual([]);
-});
-afterAll(async () => {
-	await phone?.close();
-});
+const phone = phoneForFile();
 
 const signIn = (email: string) => signInAs(phone, base, email);
 

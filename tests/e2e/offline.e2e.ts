@@ -1,21 +1,12 @@
-import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
+import { describe, expect, inject, it } from 'vitest';
 import { freePort, serve } from '../../scripts/lib/app';
 import { portFree } from '../../scripts/lib/mariadb';
-import { openPhone, shot, signInAs } from './browser';
+import { phoneForFile, shot, signInAs } from './browser';
 
 const base = inject('baseURL');
 const JOB_1001 = '019a0000-0000-7000-8000-000000000301'; // seeded for the demo technician
-let phone: Awaited<ReturnType<typeof openPhone>>;
 
-beforeAll(async () => {
-	phone = await openPhone();
-});
-afterEach(() => {
-	expect(phone.errors, 'uncaught errors in the page').toEqual([]);
-});
-afterAll(async () => {
-	await phone?.close();
-});
+const phone = phoneForFile();
 
 const badge = () => phone.page.getByTestId('sync-badge');
 

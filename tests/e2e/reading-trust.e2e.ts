@@ -6,23 +6,14 @@
  * cold spec 0.38–0.58 Ω; the example meter's 20 Ω range reads to 19.99 Ω and is not its
  * highest.
  */
-import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
-import { openPhone, PHONE, shot, signInAs } from './browser';
+import { describe, expect, inject, it } from 'vitest';
+import { PHONE, phoneForFile, shot, signInAs } from './browser';
 import { typeOnKeypad } from './phone-steps';
 
 const base = inject('baseURL');
 const JOB = '019a0000-0000-7000-8000-000000000301';
-let phone: Awaited<ReturnType<typeof openPhone>>;
 
-beforeAll(async () => {
-	phone = await openPhone();
-});
-afterEach(() => {
-	expect(phone.errors, 'uncaught errors in the page').toEqual([]);
-});
-afterAll(async () => {
-	await phone?.close();
-});
+const phone = phoneForFile();
 
 const type = (text: string) => typeOnKeypad(phone.page, text);
 

@@ -1,18 +1,9 @@
-import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
+import { describe, expect, inject, it } from 'vitest';
 import { DEMO_USERS } from '../../src/lib/server/seed/demo';
-import { openPhone, shot, signInAs } from './browser';
+import { phoneForFile, shot, signInAs } from './browser';
 
 const base = inject('baseURL');
-let phone: Awaited<ReturnType<typeof openPhone>>;
-beforeAll(async () => {
-	phone = await openPhone();
-});
-afterEach(() => {
-	expect(phone.errors, 'uncaught errors in the page').toEqual([]);
-});
-afterAll(async () => {
-	await phone?.close();
-});
+const phone = phoneForFile();
 
 const ROLE_WORDS = {
 	owner: 'Owner',

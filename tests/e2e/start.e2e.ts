@@ -1,20 +1,11 @@
-import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
+import { describe, expect, inject, it } from 'vitest';
 import { DEMO_USERS } from '../../src/lib/server/seed/demo';
 import { axeViolations } from './axe';
-import { openPhone, shot, signInAs } from './browser';
+import { phoneForFile, shot, signInAs } from './browser';
 
 const base = inject('baseURL'); // http://localhost:PORT
 const numeric = base.replace('//localhost:', '//127.0.0.1:');
-let phone: Awaited<ReturnType<typeof openPhone>>;
-beforeAll(async () => {
-	phone = await openPhone();
-});
-afterEach(() => {
-	expect(phone.errors, 'uncaught errors in the page').toEqual([]);
-});
-afterAll(async () => {
-	await phone?.close();
-});
+const phone = phoneForFile();
 
 describe('the start page at phone size', () => {
 	it('says what Fieldbench does, how to put it on the home screen, and offers sign-in', async () => {

@@ -2,21 +2,13 @@
 import type { ChildProcess } from 'node:child_process';
 import type { TestProject } from 'vitest/node';
 import { buildIfNeeded, freePort, migrate, serve, stopServe } from '../../scripts/lib/app';
-import { mailEnv, startMailServer, stopMailServer } from '../../scripts/lib/mail';
-import { payEnv, startPayServer, stopPayServer } from '../../scripts/lib/pay';
-import { s3Env, startS3Server, stopS3Server } from '../../scripts/lib/s3';
 import { finish, freshDatabase } from '../helpers/database';
+import { startFakes, stopFakes } from '../helpers/fakes';
 
 let created: Awaited<ReturnType<typeof freshDatabase>> | null = null;
 let child: ChildProcess | null = null;
-/** This runner's own fake mail server (its messages in .data/mail/<name>/). */
-const MAIL_NAME = `integration-${process.pid}`;
-/** This runner's own fake payment provider. */
-const PAY_NAME = `integration-${process.pid}`;
-/** This runner's own fake photo store (its objects in .data/s3/<name>/). */
-const S3_NAME = `integration-${process.pid}`;
-/** E-mail looked at often and retried soon, so the tests do not wait long. */
-const FAST_MAIL = { MAIL_POLL_MS: '500', MAIL_RETRY_BASE_MS: '300', MAIL_MAX_ATTEMPTS: '8' };
+/** This runner's own fakes (mail in .data/mail/<name>/, photos in .data/s3/<name>/, payments). */
+const FAKES = `integration-${process.pid}`;
 
 export async function setup(project: TestProject) {
 	const db = await freshDatabase('fieldbench_test');
@@ -24,20 +16,13 @@ export async function setup(project: TestProject) {
 	Object.assign(process.env, db.env);
 	await migrate();
 	buildIfNeeded();
-	const mail = await startMailServer(MAIL_NAME);
-	project.provide('mail', { name: MAIL_NAME, port: mail.port, dir: mail.dir });
-	const store = await startS3Server(S3_NAME);
-	// Download addresses that expire soon, so the expiry test does not wait long.
-	const photos = { ...s3Env(store.port), PHOTO_URL_SECONDS: '2' };
-	project.provide('s3Env', photos);
 	const port = await freePort(4200);
-	const pay = await startPayServer(PAY_NAME, `http://127.0.0.1:${port}/api/pay/webhook`);
-	project.provide('payURL', pay.url);
-	const s = await serve(
-		port,
-		{ ...db.env, ...mailEnv(mail.port, mail.dir), ...FAST_MAIL, ...photos, ...payEnv(pay.url), ADDRESS_HEADER: 'x-forwarded-for' },
-		'ignore'
-	);
+	// Download addresses that expire soon, so the expiry test does not wait long.
+	const fakes = await startFakes(FAKES, port, { PHOTO_URL_SECONDS: '2' });
+	project.provide('mail', { name: FAKES, port: fakes.mail.port, dir: fakes.mail.dir });
+	project.provide('s3Env', fakes.s3);
+	project.provide('payURL', fakes.pay.url);
+	const s = await serve(port, { ...db.env, ...fakes.env, ADDRESS_HEADER: 'x-forwarded-for' }, 'ignore');
 	child = s.child;
 	project.provide('dbEnv', db.env);
 	project.provide('baseURL', s.url);
@@ -45,9 +30,7 @@ export async function setup(project: TestProject) {
 
 export async function teardown() {
 	if (child) stopServe(child);
-	await stopMailServer(MAIL_NAME, true);
-	await stopPayServer(PAY_NAME);
-	await stopS3Server(S3_NAME, true);
+	await stopFakes(FAKES);
 	await finish(created);
 }
 
