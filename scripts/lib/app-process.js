@@ -13,8 +13,8 @@
  *
  * Answers of 1 KiB and more are compressed (`compression`: brotli when the client takes it,
  * else gzip; both at their fastest setting). A pull page of 2,000 readings is about 1.8 MB of
- * JSON and shrinks twenty- to fortyfold in 2–6 ms: what a phone downloads on a driveway's
- * signal (docs/benchmarks.md, bench:pull).
+ * JSON; the bench's near-identical readings shrink fortyfold in 2–6 ms, real ones less: what
+ * a phone downloads on a driveway's signal (docs/benchmarks.md, bench:pull).
  *
  * adapter-node's handler settings (ORIGIN, ADDRESS_HEADER, BODY_SIZE_LIMIT, …) apply as
  * usual; the settings of its own server (SOCKET_PATH, socket activation, IDLE_TIMEOUT,
