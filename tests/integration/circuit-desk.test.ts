@@ -16,6 +16,7 @@
 import { QueryTypes } from 'sequelize';
 import { v7 as uuidv7 } from 'uuid';
 import { beforeAll, describe, expect, inject, it } from 'vitest';
+import { parseCsv } from '../../src/lib/csv';
 import { db } from '../../src/lib/server/db';
 import { jobs } from '../../src/lib/server/services/jobs';
 import { countWaiting } from '../../src/lib/server/services/signoffs';
@@ -162,8 +163,22 @@ describe('the overview counts circuit tests', () => {
 		expect(later.circuits[0].kind).toMatch(/battery|parasitic/);
 		expect(later.people.find((p) => p.id === w.users.apprentice.id)).toMatchObject({ tests: 4, waiting: 1 });
 
+		// The same table as CSV (the library's conventions: `;` with decimal commas).
+		const csv = await w.as.lead.get('/api/overview/csv?table=circuits&delimiter=semicolon&circuitsSort=kind');
+		expect(csv.status).toBe(200);
+		expect(csv.headers.get('content-disposition')).toMatch(/filename="fieldbench-circuits-/);
+		const rows = parseCsv(await csv.text()).rows.map((x) => x.cells);
+		expect(rows[0]).toEqual(['test', 'kind', 'tests', 'out_of_spec', 'cant_tell', 'ok', 'phone_differed', 'waiting_signoff', 'out_of_spec_pct']);
+		expect(rows.slice(1)).toEqual([
+			['Battery test', 'battery', '2', '0', '2', '0', '0', '1', '0'], // both batteries too flat to judge: can't tell
+			['Charging test', 'charging', '1', '0', '0', '1', '0', '0', '0'],
+			['Parasitic draw', 'parasitic', '2', '2', '0', '0', '0', '0', '100'],
+			['Relay test', 'relay', '1', '1', '0', '0', '1', '0', '100']
+		]);
+
 		const page = await html(w.as.lead, '/overview');
 		expect(page).toContain('data-testid="circuits-table"');
+		expect(page).toContain('table=circuits');
 		const relayRow = /<tr[^>]*data-kind="relay"[^]*?<\/tr>/.exec(page)?.[0] ?? '';
 		expect(relayRow).toContain('Relay test');
 		expect(relayRow.replace(/<!--[^]*?-->/g, '')).toMatch(/<span aria-hidden="true" class="mr-1">⚑<\/span>1<\/td>/);

@@ -33,6 +33,7 @@ const HEADERS: Record<OverviewTable, string[]> = {
 		'lead_zero_min_ohm',
 		'lead_zero_max_ohm'
 	],
+	circuits: ['test', 'kind', 'tests', 'out_of_spec', 'cant_tell', 'ok', 'phone_differed', 'waiting_signoff', 'out_of_spec_pct'],
 	people: [
 		'name',
 		'role',
@@ -84,6 +85,8 @@ function lines(table: OverviewTable, t: OverviewTables): Cell[][] {
 					ohm(p.maxOhms)
 				])
 			);
+		case 'circuits':
+			return t.circuits.map((r) => [r.title, r.kind, r.tests, r.outOfSpec, r.cantTell, r.ok, r.differ, r.waiting, pct(r.failRate)]);
 		case 'people':
 			return t.people.map((r) => [
 				r.name,

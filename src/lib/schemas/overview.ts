@@ -22,7 +22,7 @@ export const METER_SORTS = [
 ] as const;
 export const PEOPLE_SORTS = ['name', 'role', 'tests', 'finished', 'cantTellRate', 'waiting'] as const;
 export const CIRCUIT_SORTS = ['kind', 'tests', 'outOfSpec', 'cantTell', 'ok', 'differ', 'waiting'] as const;
-export const OVERVIEW_TABLES = ['parts', 'meters', 'lead-zero', 'people'] as const;
+export const OVERVIEW_TABLES = ['parts', 'meters', 'lead-zero', 'circuits', 'people'] as const;
 export type OverviewTable = (typeof OVERVIEW_TABLES)[number];
 
 /** How many days the overview covers when no start is given (the last 90 days). */

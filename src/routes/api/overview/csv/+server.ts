@@ -8,7 +8,7 @@ import { ValidationError } from '$lib/server/errors';
 import { parseOverviewQuery, readOverview } from '$lib/server/services/overview';
 
 /**
- * GET /api/overview/csv?table=parts|meters|lead-zero|people&delimiter=semicolon&… (the
+ * GET /api/overview/csv?table=parts|meters|lead-zero|circuits|people&delimiter=semicolon&… (the
  * overview's query) → that table as text/csv: `,` and decimal points, or `;` and decimal commas.
  */
 export const GET = api(
