@@ -39,6 +39,10 @@ describe('circuit tests offline', () => {
 		await page().goto(`${base}/field/job/${JOB}`);
 		// Seeded and judged by the server: 12.08 V at 8 °C → 12.16 V at 26.7 °C → 39 % (BCI table): charge and re-test.
 		await expect.poll(() => page().getByTestId('circuit-tests').textContent(), { timeout: 15_000 }).toContain('Charge and re-test — the battery is 39 % charged');
+		// Each saved test offers the same kind again (after charging, a repair or a send-back).
+		const again = page().getByTestId('circuit-retest').first();
+		expect(await again.getAttribute('href')).toBe(`/field/job/${JOB}/circuit/battery`);
+		expect(await again.textContent()).toMatch(/Test again: Battery test/);
 		// A job with only circuit tests does not say it has no tests above them.
 		expect(await page().getByText('No tests yet.').count()).toBe(0);
 		expect(await page().getByText('None besides the battery and circuit tests below.').count()).toBe(1);
