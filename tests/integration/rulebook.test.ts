@@ -55,6 +55,15 @@ type Action = {
 };
 
 const LEADS: RoleKey[] = ['owner', 'lead'];
+/** A different time zone for each role's attempt, so a change that landed is told apart. */
+const ZONE_BY_ROLE: Record<RoleKey, string> = {
+	owner: 'Europe/Berlin',
+	lead: 'Europe/Paris',
+	technician: 'Europe/Madrid',
+	apprentice: 'Europe/Rome',
+	otherLead: 'Europe/Vienna',
+	signedOut: 'Europe/Oslo'
+};
 const STAFF: RoleKey[] = ['owner', 'lead', 'technician'];
 const EVERYONE: RoleKey[] = ['owner', 'lead', 'technician', 'apprentice'];
 
@@ -749,6 +758,21 @@ const ACTIONS: Action[] = [
 				return res.status === 200 && (await res.json()).items.some((c: { conflictId: string }) => c.conflictId === t.id);
 			}
 		}
+	},
+	// ——— The workshop's settings (the team page's forms; no JSON route, no sync): leads and owners, each for their own workshop ———
+	{
+		name: 'change the workshop’s time zone',
+		allowed: [...LEADS, 'otherLead'],
+		setup: async (r) => ({ zone: ZONE_BY_ROLE[r] }),
+		form: (t) => ({ path: '/team?/timeZone', fields: { timeZone: t.zone } }),
+		landed: async (t, r) => (await count('SELECT COUNT(*) AS n FROM workshops WHERE id = ? AND time_zone = ?', wsOf(r).workshop.id, t.zone)) === 1
+	},
+	{
+		name: 'change what the workshop’s phones keep',
+		allowed: [...LEADS, 'otherLead'],
+		setup: async (r) => ({ days: String(40 + ROLES.indexOf(r)) }),
+		form: (t) => ({ path: '/team?/windows', fields: { phoneDays: t.days, deskDays: '30' } }),
+		landed: async (t, r) => (await count('SELECT COUNT(*) AS n FROM sync_settings WHERE workshop_id = ? AND phone_days = ?', wsOf(r).workshop.id, Number(t.days))) === 1
 	}
 ];
 
@@ -812,7 +836,8 @@ describe(`the rulebook: ${TOTAL} cases (${ROLES.length} roles × ${ACTIONS.lengt
 		['customers and vehicles', (x: Action) => /customer|vehicle/.test(x.name)],
 		['tests, readings, spark and swap tests, sign-offs', (x: Action) => /test|reading|sign off/.test(x.name) && !x.read],
 		['the spec library', (x: Action) => /component|sheet|caution/.test(x.name)],
-		['clashes and reads', (x: Action) => /clash/.test(x.name) || !!x.read]
+		['clashes and reads', (x: Action) => /clash/.test(x.name) || !!x.read],
+		['the workshop’s settings', (x: Action) => /workshop’s/.test(x.name)]
 	] as const;
 	const seen = new Set<Action>();
 	const byGroup = groups.map(([label, match]) => {

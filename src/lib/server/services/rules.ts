@@ -362,6 +362,14 @@ export const quoteRules: Rules = {
 };
 
 /**
+ * The workshop's settings (what phones keep, the time zone): a workshop lead or owner changes
+ * them, for their own workshop only (the actor's workshop is the one changed).
+ */
+export function refuseWorkshopSettings(actor: Actor): void {
+	leadsOnly(actor, 'Only a workshop lead or owner can change the workshop’s settings');
+}
+
+/**
  * Refunds. Only a workshop lead or owner refunds, only a payment that was paid, and never
  * more than what is left unrefunded (several partial refunds may add up to the whole);
  * the amount is a whole number of minor units above zero. `leftMinor` is worked out by the

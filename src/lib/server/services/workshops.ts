@@ -7,6 +7,7 @@ import { writeAudit } from '../db/feed';
 import { ROLES, User, Workshop, type Role } from '../db/models';
 import { ValidationError } from '../errors';
 import { workshopTimeSchema } from '../../schemas/workshop-time';
+import { refuseWorkshopSettings } from './rules';
 import { defaultTimeZone } from '../../zoned-time';
 import type { Actor } from '../auth/types';
 
@@ -99,6 +100,7 @@ export async function timeZoneOf(workshopId: string): Promise<string> {
  * checked the role. Audited with the old and new zone.
  */
 export async function saveTimeZone(actor: Actor, input: unknown): Promise<string> {
+	refuseWorkshopSettings(actor);
 	const r = workshopTimeSchema.safeParse(input);
 	if (!r.success) throw ValidationError.fromZod(r.error);
 	return db().transaction(async (t) => {

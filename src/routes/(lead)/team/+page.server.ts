@@ -2,6 +2,7 @@ import { fail } from '@sveltejs/kit';
 import { guardPage, LEADS } from '$lib/server/auth/guards';
 import { actorOf } from '$lib/server/auth/types';
 import { AppError, ValidationError } from '$lib/server/errors';
+import { refuseWorkshopSettings } from '$lib/server/services/rules';
 import { createUser, listUsers, saveTimeZone } from '$lib/server/services/workshops';
 import { momentIn, timeZoneNames } from '$lib/zoned-time';
 import { saveWindows, windowsOf } from '$lib/server/sync/scope';
@@ -40,6 +41,7 @@ export const actions = {
 	/** What phones keep: how long a closed job stays on them (leads and owners). */
 	windows: async (event) => {
 		const user = guardPage(event, LEADS);
+		refuseWorkshopSettings(actorOf(user));
 		const data = Object.fromEntries(await event.request.formData()) as Record<string, string>;
 		const values = { phoneDays: String(data.phoneDays ?? ''), deskDays: String(data.deskDays ?? '') };
 		const parsed = syncWindowsSchema.safeParse(values);
@@ -60,6 +62,7 @@ export const actions = {
 			await saveTimeZone(actorOf(user), { timeZone });
 		} catch (e) {
 			if (e instanceof ValidationError) return fail(400, { zoneValue: timeZone, zoneField: e.fields.timeZone ?? e.message });
+			if (e instanceof AppError) return fail(e.status, { zoneValue: timeZone, zoneField: e.message });
 			throw e;
 		}
 		return { zoneSaved: timeZone };
