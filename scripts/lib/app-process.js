@@ -12,9 +12,9 @@
  *     (30 s), then emit `sveltekit:shutdown` (the app closes its database pool on it).
  *
  * Answers of 1 KiB and more are compressed (`compression`: brotli when the client takes it,
- * else gzip; both at their fastest setting). A pull page of 2,000 readings is about 1.8 MB of
- * JSON; the bench's near-identical readings shrink fortyfold in 2–6 ms, real ones less: what
- * a phone downloads on a driveway's signal (docs/benchmarks.md, bench:pull).
+ * else gzip; both at their fastest setting), except those that come already encoded: the
+ * sync pull compresses its multi-megabyte pages itself in one call (`src/lib/server/compress.ts`),
+ * which costs a tenth of this stream's work on them (docs/sync.md, bench:pull).
  *
  * adapter-node's handler settings (ORIGIN, ADDRESS_HEADER, BODY_SIZE_LIMIT, …) apply as
  * usual; the settings of its own server (SOCKET_PATH, socket activation, IDLE_TIMEOUT,

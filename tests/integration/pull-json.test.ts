@@ -19,7 +19,7 @@ import { rawRows } from '../../src/lib/server/db/raw';
 import { jobs } from '../../src/lib/server/services/jobs';
 import { tests as testRecords } from '../../src/lib/server/services/tests';
 import { lastSeq } from '../../src/lib/server/sync/pull';
-import { appendWriter, pageJson } from '../../src/lib/server/sync/pull-json';
+import { Bytes, appendWriter, changeJson, objectChange, pageJson } from '../../src/lib/server/sync/pull-json';
 import { stringifyNumbers } from '../../src/lib/sync/json';
 import { makeWorkshop, TEST_PASSWORD } from '../helpers/fixtures';
 import { Client } from '../helpers/http';
@@ -126,7 +126,8 @@ describe('the pull written as text', () => {
 	it('writes every append-only row as the record the pull made before, for every table', async () => {
 		for (const [entity, table] of Object.entries(APPEND_TABLES)) {
 			const { rows, columns } = await rawRows(`SELECT * FROM ${table} WHERE job_id = ? ORDER BY seq`, [jobId]);
-			const written = rows.map(appendWriter(entity, columns)).map((c) => JSON.parse(c.json.toString('utf8')));
+			const out = new Bytes(256); // small, so it grows while written
+			const written = rows.map((r) => appendWriter(entity, columns)(r, out)).map((c) => JSON.parse(changeJson(c)));
 			expect(written).toHaveLength(3);
 			for (const change of written) expect(change, `${entity} seq ${change.seq}`).toEqual(expected.get(change.entityId));
 		}
@@ -207,14 +208,24 @@ describe('the pull written as text', () => {
 	});
 
 	it('writes a page as one JSON object with the rest of the answer after the changes', () => {
+		const out = new Bytes(256);
 		const body = pageJson(
-			[
-				{ seq: 1, json: Buffer.from('{"seq":1,"note":"Ω"}') },
-				{ seq: 2, json: Buffer.from('{"seq":2}') }
-			],
+			[objectChange({ seq: 1, note: 'Ω' }, out), objectChange({ seq: 2 }, out)],
 			{ cursor: 2, more: false, snapshot: undefined, keep: ['a'] }
 		);
 		expect(JSON.parse(body.toString('utf8'))).toEqual({ changes: [{ seq: 1, note: 'Ω' }, { seq: 2 }], cursor: 2, more: false, keep: ['a'] });
 		expect(JSON.parse(pageJson([]).toString('utf8'))).toEqual({ changes: [] });
+	});
+
+	it('writes text as JSON.stringify does, however long and whatever it holds, while its buffer grows', () => {
+		const out = new Bytes(256);
+		const texts = ['', 'plain', AWKWARD, 'x'.repeat(5000), `${'y'.repeat(300)}"`, '\u007f del', '\u2028 line sep', 'é'.repeat(400)];
+		const spans = texts.map((t) => {
+			const start = out.at;
+			out.text(t);
+			return [start, out.at] as const;
+		});
+		expect(out.buf.length).toBeGreaterThan(256);
+		spans.forEach(([start, end], i) => expect(out.buf.toString('utf8', start, end), `text ${i}`).toBe(JSON.stringify(texts[i])));
 	});
 });

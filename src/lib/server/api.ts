@@ -6,6 +6,7 @@ import type { RequestEvent } from '@sveltejs/kit';
 import { requireRole, requireUser } from './auth/guards';
 import type { SessionUser } from './auth/types';
 import type { Role } from './db/models';
+import { compressFor } from './compress';
 import { AppError, toErrorResponse, ValidationError } from './errors';
 
 type Handler = (event: RequestEvent, user: SessionUser) => Promise<Response | unknown>;
@@ -24,14 +25,17 @@ export function api(fn: Handler, opts: { roles?: readonly Role[] } = {}) {
 
 /**
  * An answer whose JSON text is already written (the sync pull writes its own,
- * `sync/pull-json.ts`). With `since` (a `performance.now()`), a `Server-Timing` header says
- * how long the handler took (`handler;dur=…` in ms, W3C Server Timing), for benchmarks and
+ * `sync/pull-json.ts`), compressed in one go as `request` accepts (`compress.ts`). With
+ * `since` (a `performance.now()`), a `Server-Timing` header says how long the handler took
+ * (`handler;dur=…` in ms, W3C Server Timing; the compression included), for benchmarks and
  * the browser's network panel.
  */
-export function jsonText(body: string | Uint8Array, since?: number): Response {
-	const headers: Record<string, string> = { 'content-type': 'application/json' };
+export async function jsonText(request: Request, body: Uint8Array, since?: number): Promise<Response> {
+	const out = await compressFor(request.headers.get('accept-encoding'), body);
+	const headers: Record<string, string> = { 'content-type': 'application/json', vary: 'Accept-Encoding' };
+	if (out.encoding) headers['content-encoding'] = out.encoding;
 	if (since !== undefined) headers['server-timing'] = `handler;dur=${(performance.now() - since).toFixed(1)}`;
-	return new Response(body as BodyInit, { headers }); // a Buffer is a valid body (its type says ArrayBufferLike)
+	return new Response(out.body as BodyInit, { headers }); // a Buffer is a valid body (its type says ArrayBufferLike)
 }
 
 /** Parse the JSON body; a malformed body is a 400 like any invalid input. */

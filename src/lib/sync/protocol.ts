@@ -55,8 +55,13 @@ export const DEFAULT_PULL_LIMIT = 500;
 export const MAX_PULL_LIMIT = 1000;
 /** The largest page of a version-2 pull (a snapshot's pages are large and few). */
 export const MAX_PULL_LIMIT_V2 = 5000;
-/** The page a phone asks for (version 2). */
-export const PHONE_PULL_LIMIT = 2000;
+/**
+ * The page a phone asks for (version 2): the largest there is. A round trip on a driveway's
+ * mobile signal costs more than the server's work on a page, and a technician's first sync
+ * then fits in one or two (about 4.4 MB of JSON for 5,000 readings, some 120 KB compressed
+ * for the bench's; `npm run bench:pull`).
+ */
+export const PHONE_PULL_LIMIT = MAX_PULL_LIMIT_V2;
 
 /** True when `id` is a UUID whose version nibble is 7 (the ids devices make, sortable by time). */
 export function isUuidV7(id: string): boolean {

@@ -34,7 +34,7 @@ import { seesJob } from '../../rules';
 import { APPEND_TABLES } from '../db/append-tables';
 import { AGGREGATES } from './registry';
 import { LIBRARY, scopeOf, visibleWithoutJob, windowsOf, type FeedRow, type Scope } from './scope';
-import { FEED_COLUMNS, appendWriter, feedChange, feedText, objectChange, pageJson, type ChangeText } from './pull-json';
+import { Bytes, FEED_COLUMNS, appendWriter, feedChange, feedText, objectChange, pageJson, type ChangeText } from './pull-json';
 
 /** How long the change feed keeps its rows; an older cursor gets a snapshot (v2). */
 export const FEED_DAYS = Number(process.env.SYNC_FEED_DAYS ?? 90);
@@ -64,7 +64,10 @@ async function appendRows(entity: string, sql: string, params: unknown[], limit:
 	const { rows, columns } = await select(sql, params, limit);
 	if (!rows.length) return [];
 	const write = appendWriter(entity, columns);
-	return rows.map(write);
+	const out = new Bytes(rows.length * 1024);
+	const changes = new Array<ChangeText>(rows.length);
+	for (let i = 0; i < rows.length; i++) changes[i] = write(rows[i], out);
+	return changes;
 }
 
 /** The sources of one page: each read from its index, at most `limit` rows after `cursor`. */
@@ -114,7 +117,6 @@ async function readSources(scope: Scope, cursor: number, limit: number): Promise
 	return Promise.all(reads);
 }
 
-const asText = (r: FeedRow | ChangeText): ChangeText => ('json' in r ? r : feedChange(r));
 
 type Page = { changes: ChangeText[]; cursor: number; more: boolean };
 
@@ -129,7 +131,8 @@ async function feedPage(scope: Scope, cursor: number, last: number, limit: numbe
 		.sort((a, b) => a.seq - b.seq);
 	const page = rows.slice(0, limit);
 	if (rows.length > limit) bound = page[page.length - 1].seq;
-	return { changes: page.map(asText), cursor: bound, more: bound < last };
+	const out = new Bytes();
+	return { changes: page.map((r) => ('bytes' in r ? r : feedChange(r, out))), cursor: bound, more: bound < last };
 }
 
 /** Drop feed rows older than `days` (in batches); a cursor below `floor_seq` then gets a snapshot. */
@@ -215,10 +218,11 @@ async function readStep(s: Step, scope: Scope, base: number, after: string, want
 		const where = mutableWhere(s, scope);
 		if (!where) return [];
 		const rows = await s.model.findAll({ where: after ? { ...where, id: { ...(where.id as object), [SqlOp.gt]: after } } : where, order: [['id', 'ASC']], limit: want });
+		const out = new Bytes();
 		return rows.map((row) => {
 			const id = row.get('id') as string;
 			const change: Change = { seq: base || 1, entity: s.entity as Change['entity'], entityId: id, version: Number(row.get('version') ?? 1), op: 'upsert', record: s.toRecord(row as never) };
-			return { id, change: objectChange(change) };
+			return { id, change: objectChange(change, out) };
 		});
 	}
 	if (!scope.jobs.length) return [];
