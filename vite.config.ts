@@ -8,6 +8,11 @@ import { readPalette } from './scripts/lib/palette.js';
 const palette = readPalette();
 
 export default defineConfig({
+	build: {
+		// No report of which plugins took how long on a slow machine: the first `npm start`
+		// builds, and its output should end with the one address to open.
+		rolldownOptions: { checks: { bundlerTimings: false } }
+	},
 	plugins: [
 		tailwindcss(),
 		sveltekit(),

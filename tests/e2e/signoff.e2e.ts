@@ -4,7 +4,8 @@
  * on the office job page and signs it off from the desk; the apprentice's phone shows it
  * signed after its next sync. Then a second test sent back with a note that the apprentice
  * reads on the job list, signed off after all on the lead's own phone at the car (offline,
- * "witnessed"); and the Re-test button, which starts a test with the same part. The new
+ * "witnessed"); an apprentice's relay test signed off the same way on the lead's phone; and
+ * the Re-test button, which starts a test with the same part. The new
  * screens pass axe-core's WCAG 2.2 AA rules at phone and desk size.
  *
  * Figures: the demo coil's invented spec (seed): primary cold 0.38–0.58 Ω, secondary cold
@@ -13,6 +14,7 @@
 import type { Page } from 'playwright-core';
 import { v7 as uuidv7 } from 'uuid';
 import { afterAll, afterEach, beforeAll, describe, expect, inject, it } from 'vitest';
+import { defaultsFor } from '../../src/lib/flow/circuit';
 import { DEMO_USERS } from '../../src/lib/server/seed/demo';
 import { axeViolations } from './axe';
 import { openAt, openPhone, shot, signInAs } from './browser';
@@ -149,9 +151,10 @@ describe('an apprentice’s test signed off from the desk', () => {
 		await syncNow(page);
 		await openJob(page);
 		await expect.poll(() => stateOf(page, first)).toBe('signed');
-		expect(
-			await page.locator(`#test-${first}`).getByTestId('signoff-detail').innerText()
-		).toContain(LEAD.name);
+		// The signer's name once the phone has the workshop's people (fetched as the page opens).
+		await expect
+			.poll(() => page.locator(`#test-${first}`).getByTestId('signoff-detail').innerText())
+			.toContain(LEAD.name);
 		await expectAccessible(page, 'the apprentice’s job page');
 		await page.locator(`#test-${first}`).scrollIntoViewIfNeeded();
 		await shot(page, 'signoff-5-apprentice-signed');
@@ -283,6 +286,53 @@ describe('a test sent back, then signed off at the car', () => {
 		expect(
 			await desk.page.locator(`#test-${second}`).getByTestId('signoff-detail').innerText()
 		).toContain('watched at the car');
+	});
+});
+
+describe('an apprentice’s circuit test at the car', () => {
+	it('is signed off on the lead’s own phone offline, like a coil test, and the desk says it was watched', async () => {
+		// The apprentice's relay test, as their phone sends it (invented figures: coil 120 Ω,
+		// it clicks, 15 mV across the contacts; what it is judged against does not matter here).
+		const circuit = uuidv7();
+		const pushed = await phone.page.request.post(`${base}/api/sync/push`, {
+			data: {
+				deviceId: `e2e-apprentice-${circuit.slice(-6)}`,
+				ops: [
+					{
+						opId: uuidv7(),
+						entity: 'circuit_test',
+						entityId: circuit,
+						kind: 'create',
+						baseVersion: 0,
+						deviceTime: new Date().toISOString(),
+						fields: { jobId, kind: 'relay', inputs: { ...defaultsFor('relay'), coilOhm: 120, clicks: 'yes', contactV: 0.015 } }
+					}
+				]
+			}
+		});
+		expect(pushed.status()).toBe(200);
+		expect((await pushed.json()).results[0].status).toBe('applied');
+
+		const { page, context } = leadPhone;
+		await syncNow(page);
+		await openJob(page);
+		const card = page.locator(`#circuit-${circuit}`);
+		await expect.poll(() => card.getByTestId('signoff-state').getAttribute('data-signoff')).toBe('waiting');
+		await card.getByTestId('witness').scrollIntoViewIfNeeded();
+		await expectAccessible(page, 'the lead’s phone, an apprentice’s circuit test');
+		await shot(page, 'signoff-10-lead-phone-circuit');
+		await context.setOffline(true);
+		await card.getByRole('button', { name: 'Sign off — I watched it' }).click();
+		await expect.poll(() => card.getByTestId('signoff-state').getAttribute('data-signoff')).toBe('signed');
+		expect(await card.getByTestId('witness').count()).toBe(0);
+		await expect.poll(() => page.getByTestId('sync-badge').textContent()).toContain('1 waiting to send');
+		await context.setOffline(false);
+		await syncNow(page);
+
+		await desk.page.goto(`${base}/jobs/${jobId}`);
+		const onDesk = desk.page.locator(`#circuit-${circuit}`);
+		expect(await onDesk.getByTestId('signoff-state').getAttribute('data-signoff')).toBe('signed');
+		expect(await onDesk.getByTestId('signoff-detail').innerText()).toContain('watched at the car');
 	});
 });
 
