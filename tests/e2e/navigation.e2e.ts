@@ -144,6 +144,8 @@ describe('the phone’s More menu and the field home', () => {
 		const { page } = b;
 		await signInAs(b, base, person('lead').email);
 		await page.goto(`${base}/jobs`);
+		// Hydrated first: a menu opened while the page's script takes over can close again.
+		await page.waitForLoadState('networkidle');
 		await page.getByTestId('nav-more').click();
 		const menu = page.locator('#nav-more');
 		await menu.getByRole('link', { name: 'Team' }).waitFor();
