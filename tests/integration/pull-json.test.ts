@@ -127,7 +127,8 @@ describe('the pull written as text', () => {
 		for (const [entity, table] of Object.entries(APPEND_TABLES)) {
 			const { rows, columns } = await rawRows(`SELECT * FROM ${table} WHERE job_id = ? ORDER BY seq`, [jobId]);
 			const out = new Bytes(256); // small, so it grows while written
-			const written = rows.map((r) => appendWriter(entity, columns)(r, out)).map((c) => JSON.parse(changeJson(c)));
+			const write = appendWriter(entity, columns);
+			const written = rows.map((r) => JSON.parse(changeJson(write(r, out))));
 			expect(written).toHaveLength(3);
 			for (const change of written) expect(change, `${entity} seq ${change.seq}`).toEqual(expected.get(change.entityId));
 		}

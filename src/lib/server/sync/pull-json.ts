@@ -79,7 +79,7 @@ export const changeJson = (c: ChangeText) => c.bytes.buf.toString('utf8', c.star
  * stand for ±Infinity (an OL reading): then read with `parseNumbers` and written again, as
  * the pull always did (JSON has no Infinity: it goes out as `null` beside `ol: true`).
  */
-export const storedJson = (v: unknown) => (v == null ? 'null' : typeof v !== 'string' ? JSON.stringify(v) : v.includes('Infinity') ? JSON.stringify(parseNumbers(v)) : v);
+const storedJson = (v: unknown) => (v == null ? 'null' : typeof v !== 'string' ? JSON.stringify(v) : v.includes('Infinity') ? JSON.stringify(parseNumbers(v)) : v);
 
 /** DATETIME text (UTC, `2026-12-02 16:26:02.244`) as `Date#toJSON` writes it: `2026-12-02T16:26:02.244Z`. */
 function iso(s: string, out: Bytes): void {
