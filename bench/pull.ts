@@ -17,8 +17,10 @@
  *     as they came; the decompressing and reading after the last byte are the phone's work,
  *     not timed): a technician's first sync (`v=2`, cursor 0, pages of the phone's size) and
  *     the anchor, the raw indexed SELECT of the same readings (`mariadb` driver, `job_id IN
- *     (…)`), taken in turn BENCH_RUNS times (9) so both meet the machine in the same state,
- *     best and median; the lead's first sync (best of 3); then 500 new readings pushed on
+ *     (…)`, the table's own columns: not `record_json`, the change kept beside them), after
+ *     BENCH_WARMUP (10) unmeasured pairs taken in turn BENCH_RUNS times (25) so both meet the
+ *     machine in the same state: best, median, and the median of each pair's ratio; the
+ *     lead's first sync (best of 3, after one unmeasured); then 500 new readings pushed on
  *     one of the technician's open jobs and the incremental pull of both. Per pull the round
  *     trips, the bytes of JSON and on the wire, the changes and the time (the wall time of
  *     the requests, and the app's time in the handler from the answers' `Server-Timing`).
@@ -29,7 +31,7 @@
  * Knobs (environment): BENCH_PULL_READINGS (1000000), BENCH_JOBS (3000), BENCH_TECHS (10),
  * BENCH_HISTORY_DAYS (730 for 3,000 jobs, in proportion otherwise: a smaller run is the last
  * part of the same workshop, with as many jobs a day, so what a phone keeps is the same),
- * BENCH_PAGE (the phone's page, 2000). All data is invented.
+ * BENCH_PAGE (the phone's page, 5000), BENCH_RUNS (25), BENCH_WARMUP (10). All data is invented.
  */
 import type { ChildProcess } from 'node:child_process';
 import http from 'node:http';
@@ -49,7 +51,9 @@ const JOBS = Number(process.env.BENCH_JOBS ?? 3000);
 const TECHS = Number(process.env.BENCH_TECHS ?? 10);
 const PAGE = Number(process.env.BENCH_PAGE ?? PHONE_PULL_LIMIT);
 /** How many times the technician's first sync and the SELECT are each measured (in turn). */
-const RUNS = Number(process.env.BENCH_RUNS ?? 9);
+const RUNS = Number(process.env.BENCH_RUNS ?? 25);
+/** Unmeasured first syncs and SELECTs before them, so the app's processes run compiled code (as a server up a while does). */
+const WARMUP = Number(process.env.BENCH_WARMUP ?? 10);
 const PASSWORD = 'bench-password-2026';
 /** Two years for 3,000 jobs; a smaller run is the most recent part of the same workshop (the same jobs a day). */
 const HISTORY_DAYS = Number(process.env.BENCH_HISTORY_DAYS ?? Math.round((730 * JOBS) / 3000));
@@ -256,20 +260,30 @@ async function main() {
 			[w.id, techs[0].id]
 		)) as { ids: string }[];
 		const ids = String(scoped.ids ?? '').split(',').filter(Boolean);
+		// The table's own columns: not `record_json`, the change the pull sends kept beside them
+		// (a generated copy; reading it too would make the anchor slower and the rate look better).
+		const own = (
+			(await pool.query(
+				"SELECT COLUMN_NAME AS c FROM information_schema.COLUMNS WHERE TABLE_SCHEMA = DATABASE() AND TABLE_NAME = 'readings' AND EXTRA NOT LIKE '%GENERATED%' ORDER BY ORDINAL_POSITION"
+			)) as { c: string }[]
+		).map((r) => r.c);
 		let rawRows = 0;
 		const select = async () => {
 			const t0 = performance.now();
-			const rows = (await pool!.query(`SELECT * FROM readings WHERE job_id IN (${ids.map(() => '?').join(', ')}) ORDER BY seq`, ids)) as unknown[];
+			const rows = (await pool!.query(`SELECT ${own.join(', ')} FROM readings WHERE job_id IN (${ids.map(() => '?').join(', ')}) ORDER BY seq`, ids)) as unknown[];
 			rawRows = rows.length;
 			return performance.now() - t0;
 		};
-		const explain = (await pool.query(`EXPLAIN SELECT * FROM readings WHERE job_id IN (${ids.map(() => '?').join(', ')}) AND seq > 0 ORDER BY seq LIMIT ${PAGE}`, ids)) as { key: string | null; rows: number }[];
+		const explain = (await pool.query(`EXPLAIN SELECT ${own.join(', ')} FROM readings WHERE job_id IN (${ids.map(() => '?').join(', ')}) AND seq > 0 ORDER BY seq LIMIT ${PAGE}`, ids)) as { key: string | null; rows: number }[];
 
-		// One warm-up each (compiled code, warm buffer pool); then the technician's first sync
-		// and the SELECT taken in turn, RUNS times, so both meet the machine in the same state.
-		await pull(techClient, served.url, 0);
+		// Warm-up (compiled code in every app process, warm buffer pool and connection pools);
+		// then the technician's first sync and the SELECT taken in turn, RUNS times, so both
+		// meet the machine in the same state.
+		for (let i = 0; i < WARMUP; i++) {
+			await pull(techClient, served.url, 0);
+			await select();
+		}
 		await pull(lc, served.url, 0);
-		await select();
 		const techRuns: PullResult[] = [];
 		const selectMs: number[] = [];
 		for (let i = 0; i < RUNS; i++) {
@@ -277,6 +291,9 @@ async function main() {
 			selectMs.push(await select());
 		}
 		const leadRuns = [await pull(lc, served.url, 0), await pull(lc, served.url, 0), await pull(lc, served.url, 0)];
+		// Each first sync against the SELECT taken right after it (the same rows): the machine's
+		// drift from one pair to the next cancels out.
+		const paired = techRuns.map((r, i) => r.readings / r.ms / (rawRows / selectMs[i])).sort((a, b) => a - b);
 		const byTime = (a: PullResult, b: PullResult) => a.ms - b.ms;
 		techRuns.sort(byTime);
 		leadRuns.sort(byTime);
@@ -316,8 +333,11 @@ async function main() {
 		const ratio = rate(techFirst, techFirst.ms, rawMs);
 		const medianRatio = rate(techMedian, techMedian.ms, rawMedian);
 		const handlerRatio = rate(techFirst, techFirst.handlerMs, rawMs);
+		const pairedRatio = paired[paired.length >> 1];
+		const ratios = [ratio, medianRatio, pairedRatio];
+		const verdict = ratios.every((x) => x >= 0.5) ? 'met' : ratios.some((x) => x >= 0.5) ? `met in ${ratios.filter((x) => x >= 0.5).length} of 3` : 'NOT met';
 		console.log(
-			`  goals: technician first sync ${fmt(techFirst.ms)} ms (< 1000: ${techFirst.ms < 1000 ? 'met' : 'NOT met'}), ${techFirst.trips} round trips; pull / raw SELECT rate ${fmt(ratio, 2)} best to best, ${fmt(medianRatio, 2)} median to median, ${fmt(handlerRatio, 2)} in the handler (≥ 0.5: ${ratio >= 0.5 && medianRatio >= 0.5 ? 'met' : ratio >= 0.5 || medianRatio >= 0.5 ? 'met in one of the two' : 'NOT met'}); lead first sync ${fmt(leadFirst.readings)} readings of ${fmt(made + 1)} (the window's jobs: ${leadFirst.keep} of ${JOBS + 1})`
+			`  goals: technician first sync ${fmt(techFirst.ms)} ms (< 1000: ${techFirst.ms < 1000 ? 'met' : 'NOT met'}), ${techFirst.trips} round trips; pull / raw SELECT rate ${fmt(ratio, 2)} best to best, ${fmt(medianRatio, 2)} median to median, ${fmt(pairedRatio, 2)} median of the ${paired.length} pairs (${fmt(paired[0], 2)}–${fmt(paired[paired.length - 1], 2)}), ${fmt(handlerRatio, 2)} in the handler (≥ 0.5: ${verdict}); lead first sync ${fmt(leadFirst.readings)} readings of ${fmt(made + 1)} (the window's jobs: ${leadFirst.keep} of ${JOBS + 1})`
 		);
 		if (techNext.readings !== 500) throw new Error(`the technician's incremental pull carried ${techNext.readings} readings, not 500`);
 		if (rawRows !== techFirst.readings) throw new Error(`the first sync carried ${techFirst.readings} readings, the SELECT ${rawRows}`);

@@ -139,6 +139,33 @@ describe('the pull written as text', () => {
 		expect((ol as Change).record?.samples).toEqual({ value: null, ol: true, bands: [{ min: null, max: 0.6 }], word: null });
 	});
 
+	it("keeps each reading's change as the pull sends it, written by the database (none for an OL reading)", async () => {
+		// The rows above (awkward text, nulls, an OL reading), and two more with every flag set.
+		const job = (await jobs.create(w.users.lead.actor, { complaint: 'Misfire under load', assigneeId: w.users.technician.id })).id as string;
+		const test = (await testRecords.create(w.users.lead.actor, { jobId: job })).id as string;
+		const cols = await columnsOf('readings');
+		for (const v of [0, 2]) {
+			await db().query('UPDATE change_counters SET last_seq = last_seq + 1 WHERE workshop_id = ?', { replacements: [w.workshop.id] });
+			const seq = await lastSeq(w.workshop.id);
+			const values = cols.map((c) => (c.dataType === 'tinyint' ? 1 : valueOf(c, v, { workshop: w.workshop.id, job, test, user: w.users.lead.id }, seq)));
+			await db().query(`INSERT INTO readings (${cols.map((c) => c.name).join(', ')}) VALUES (${cols.map(() => '?').join(', ')})`, { replacements: values });
+		}
+		const rows = await db().query<Record<string, unknown>>('SELECT * FROM readings WHERE job_id IN (?, ?) ORDER BY seq', { replacements: [jobId, job], type: QueryTypes.SELECT });
+		expect(rows).toHaveLength(5);
+		for (const row of rows) {
+			const want = reference('reading', row);
+			if (row.samples && String(row.samples).includes('Infinity')) {
+				expect(row.record_json, 'an OL reading is written by the pull').toBeNull();
+				continue;
+			}
+			expect(row.record_json).toBeInstanceOf(Buffer); // UTF-8 bytes, copied as they are
+			expect(JSON.parse(`{"seq":${row.seq}${row.record_json}`), `reading seq ${row.seq}`).toEqual(want);
+		}
+		// Both flags came through as true, and empty ones as null.
+		const flags = rows.map((r) => JSON.parse(`{"seq":0${r.record_json ?? ',"record":{}}'}`).record).map((r) => [r.mismatch, r.rangeUnresolved]);
+		expect(flags).toEqual(expect.arrayContaining([[true, true], [false, null]]));
+	});
+
 	it('sends the same changes through the snapshot, the feed and a job fetched on demand', async () => {
 		const mine = (changes: Change[]) => changes.filter((c) => expected.has(c.entityId));
 		const pages = async (cursor: number, limit: number) => {

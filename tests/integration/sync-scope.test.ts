@@ -274,3 +274,44 @@ describe('what phones keep: the team page', () => {
 		expect(await windowsOf(w.workshop.id)).toEqual({ phoneDays: 14, deskDays: 60 });
 	});
 });
+
+describe('pull v2: readings read in two halves', () => {
+	it('carries every reading once and in feed order, whatever the page and however the readings lie across jobs', async () => {
+		const w = await makeWorkshop('Halves');
+		const lib = await library(w);
+		const tech = await signedIn(w.users.technician.email);
+		const lead = await signedIn(w.users.lead.email);
+		// Five jobs: one holds most readings, the others a few or none; pushed interleaved, so
+		// the seqs of the jobs mix, and every other job falls in one half (the pull's split).
+		const counts = [41, 3, 0, 17, 1];
+		const testIds: string[] = [];
+		for (const _count of counts) {
+			const job = (await jobs.create(w.users.lead.actor, { complaint: 'Misfire on two cylinders', assigneeId: w.users.technician.id })).id as string;
+			const t = create('test', { jobId: job, ...lib, meter: METER, temperature: { mode: 'measured', tempC: 20 } });
+			expect((await push(tech, 'halves-phone', [t]))[0].status).toBe('applied');
+			testIds.push(t.entityId);
+		}
+		const before = await lastSeq(w.workshop.id);
+		const order = counts.flatMap((count, k) => Array.from({ length: count }, () => k));
+		let x = 7; // a fixed shuffle (a linear congruential generator), the same every run
+		for (let i = order.length - 1; i > 0; i--) {
+			x = (x * 1103515245 + 12345) % 2147483648;
+			const j = x % (i + 1);
+			[order[i], order[j]] = [order[j], order[i]];
+		}
+		const readings = order.map((k, i) => create('reading', { testId: testIds[k], checkKey: 'primary', samples: [{ value: 0.4 + i / 1000, unit: 'Ω' }] }));
+		expect((await push(tech, 'halves-phone', readings)).every((r) => r.status === 'applied')).toBe(true);
+		const all = readings.map((r) => r.entityId).sort();
+
+		for (const limit of [1, 2, 3, 5, 8, 13, 64]) {
+			for (const [who, c] of [['technician', tech], ['lead', lead]] as const) {
+				for (const [how, from] of [['snapshot', 0], ['feed', before]] as const) {
+					const got = (await pullV2(c, from, limit)).changes.filter((ch) => ch.entity === 'reading');
+					const label = `${who}, ${how}, pages of ${limit}`;
+					expect(got.map((ch) => ch.entityId).sort(), label).toEqual(all);
+					expect(got.every((ch, i) => i === 0 || ch.seq > got[i - 1].seq), `${label}: in feed order`).toBe(true);
+				}
+			}
+		}
+	});
+});

@@ -17,6 +17,11 @@
  * The record of an append-only row is the very object `appendRecord` makes (same keys, same
  * values), which `tests/integration/pull-json.test.ts` checks row by row against it for
  * every table.
+ *
+ * Readings, the table that grows, are not written here at all: each row keeps its change as
+ * text the database wrote once (`readings.record_json`, `STORED_CHANGE`), which the pull
+ * copies behind its seq (`storedChange`); only an OL reading, whose text is NULL, comes
+ * through the writer below.
  */
 import { parseNumbers } from '../../sync/json';
 import { HIDDEN_COLUMNS, JSON_COLUMNS, camel } from '../db/append-tables';
@@ -237,6 +242,16 @@ export function feedChange(r: FeedRow, out: Bytes): ChangeText {
 	out.room(1);
 	out.ascii('}');
 	return { seq: r.seq, bytes: out, start, end: out.at };
+}
+
+/** A change kept as text after its seq (`STORED_CHANGE`: `,"entity":…}`) into `out`, its seq in front. */
+export function storedChange(seq: number, rest: Buffer, out: Bytes): ChangeText {
+	const start = out.at;
+	out.room(24 + rest.length);
+	out.ascii('{"seq":');
+	out.ascii(String(seq));
+	out.at += rest.copy(out.buf, out.at);
+	return { seq, bytes: out, start, end: out.at };
 }
 
 /** Any change object (the mutable entities' snapshot rows) as JSON into `out`. */

@@ -28,13 +28,13 @@ import { db } from '../db';
 import { NotFoundError, ValidationError } from '../errors';
 import { MAX_PULL_LIMIT_V2, type Change } from '../../sync/protocol';
 import { Job } from '../db/models';
-import { rawRows } from '../db/raw';
+import { rawRows, type RawColumn } from '../db/raw';
 import { isLead } from '../../roles';
 import { seesJob } from '../../rules';
-import { APPEND_TABLES } from '../db/append-tables';
+import { APPEND_TABLES, STORED_CHANGE, type AppendTable } from '../db/append-tables';
 import { AGGREGATES } from './registry';
 import { LIBRARY, scopeOf, visibleWithoutJob, windowsOf, type FeedRow, type Scope } from './scope';
-import { Bytes, FEED_COLUMNS, appendWriter, feedChange, feedText, objectChange, pageJson, type ChangeText } from './pull-json';
+import { Bytes, FEED_COLUMNS, appendWriter, feedChange, feedText, objectChange, pageJson, storedChange, type ChangeText } from './pull-json';
 
 /** How long the change feed keeps its rows; an older cursor gets a snapshot (v2). */
 export const FEED_DAYS = Number(process.env.SYNC_FEED_DAYS ?? 90);
@@ -59,14 +59,82 @@ type AppendSource = { rows: ChangeText[]; cut: boolean };
 /** At most `limit` rows of `sql` in seq order, read with the driver alone (`rawRows`). */
 const select = (sql: string, params: unknown[], limit: number) => rawRows(`${sql} ORDER BY seq LIMIT ?`, [...params, limit]);
 
-/** At most `limit` rows of an append-only table in seq order, as changes. */
-async function appendRows(entity: string, sql: string, params: unknown[], limit: number): Promise<ChangeText[]> {
-	const { rows, columns } = await select(sql, params, limit);
+/** Rows of an append-only table (`SELECT *`) as changes, in their order. */
+function written(entity: string, { rows, columns }: { rows: unknown[][]; columns: RawColumn[] }): ChangeText[] {
 	if (!rows.length) return [];
 	const write = appendWriter(entity, columns);
 	const out = new Bytes(rows.length * 1024);
 	const changes = new Array<ChangeText>(rows.length);
 	for (let i = 0; i < rows.length; i++) changes[i] = write(rows[i], out);
+	return changes;
+}
+
+/** Changes in seq order, and whether more rows lie beyond the last of them (`cut`). */
+type Rows = { rows: ChangeText[]; cut: boolean };
+
+/**
+ * At most `limit` rows of an append-only table of `jobs` matching `rest`, in seq order, as
+ * changes; `cut` when more follow. A table that keeps each row's change (`STORED_CHANGE`:
+ * readings) is read as those bytes and copied; the rows without them (an OL reading) are
+ * read whole and written as any other.
+ *
+ * A stored table of several jobs is read in two steps. Its `(job_id, seq)` index alone says
+ * where the page ends (the seq of its `limit`-th row, if there is one): one query ordering
+ * the rows themselves across jobs would read every row after the cursor before keeping
+ * `limit` of them — the whole window, page after page, for a lead. Then the page's rows, in
+ * two reads at once (every other job each, merged in seq order): the database's time is most
+ * of this read.
+ */
+async function appendRows(entity: string, table: AppendTable, jobs: string[], rest: string, params: unknown[], limit: number): Promise<Rows> {
+	const where = (part: string[], upTo: number | null = null) => ({
+		sql: `job_id IN (${ids(part)}) AND ${rest}${upTo === null ? '' : ' AND seq <= ?'}`,
+		params: [...part, ...params, ...(upTo === null ? [] : [upTo])]
+	});
+	const stored = STORED_CHANGE[table];
+	if (!stored) {
+		const w = where(jobs);
+		const rows = written(entity, await select(`SELECT * FROM ${table} WHERE ${w.sql}`, w.params, limit));
+		return { rows, cut: rows.length === limit };
+	}
+	if (jobs.length < 2) {
+		// One job: the index gives its rows in seq order, `limit` of them read.
+		const rows = await storedRows(entity, table, stored, where(jobs), limit);
+		return { rows, cut: rows.length === limit };
+	}
+	const w = where(jobs);
+	const [end] = (await rawRows(`SELECT seq FROM ${table} WHERE ${w.sql} ORDER BY seq LIMIT 1 OFFSET ?`, [...w.params, limit - 1])).rows;
+	const upTo = end ? Number(end[0]) : null;
+	const [a, b] = await Promise.all([0, 1].map((k) => storedRows(entity, table, stored, where(jobs.filter((_j, i) => i % 2 === k), upTo), limit)));
+	const rows = merged(a, b, limit);
+	return { rows, cut: upTo !== null || rows.length === limit };
+}
+
+/** Two lists in seq order as one, at most `limit`. */
+function merged(a: ChangeText[], b: ChangeText[], limit: number): ChangeText[] {
+	const out: ChangeText[] = [];
+	let i = 0;
+	let j = 0;
+	while (out.length < limit && (i < a.length || j < b.length)) out.push(j >= b.length || (i < a.length && a[i].seq < b[j].seq) ? a[i++] : b[j++]);
+	return out;
+}
+
+/** At most `limit` rows of a table with a stored change (column `stored`) in seq order: the kept bytes, or the row written for the odd one without. */
+async function storedRows(entity: string, table: AppendTable, stored: string, where: { sql: string; params: unknown[] }, limit: number): Promise<ChangeText[]> {
+	const { rows } = await select(`SELECT seq, ${stored}, IF(${stored} IS NULL, id, NULL) FROM ${table} WHERE ${where.sql}`, where.params, limit);
+	if (!rows.length) return [];
+	const out = new Bytes(rows.length * 1024);
+	const changes = new Array<ChangeText>(rows.length);
+	const missing = new Map<string, number>(); // id → where its change goes
+	for (let i = 0; i < rows.length; i++) {
+		const r = rows[i];
+		if (r[1] == null) missing.set(r[2] as string, i);
+		else changes[i] = storedChange(Number(r[0]), r[1] as Buffer, out);
+	}
+	if (missing.size) {
+		const { rows: whole, columns } = await rawRows(`SELECT * FROM ${table} WHERE id IN (${ids([...missing.keys()])})`, [...missing.keys()]);
+		const idAt = columns.findIndex((c) => c.name === 'id');
+		written(entity, { rows: whole, columns }).forEach((c, k) => (changes[missing.get(whole[k][idAt] as string)!] = c));
+	}
 	return changes;
 }
 
@@ -110,7 +178,7 @@ async function readSources(scope: Scope, cursor: number, limit: number): Promise
 	if (scope.jobs.length) {
 		for (const [entity, table] of Object.entries(APPEND_TABLES)) {
 			reads.push(
-				appendRows(entity, `SELECT * FROM ${table} WHERE job_id IN (${ids(scope.jobs)}) AND seq > ?`, [...scope.jobs, cursor], limit).then((rows) => ({ rows, cut: rows.length === limit }))
+				appendRows(entity, table, scope.jobs, 'seq > ?', [cursor], limit)
 			);
 		}
 	}
@@ -176,7 +244,7 @@ export async function pullChanges(user: SessionUser, cursor: number, limit: numb
 
 type Step =
 	| { kind: 'mutable'; entity: string; model: ModelStatic<Model>; toRecord: (row: never) => Record<string, unknown> }
-	| { kind: 'append'; entity: string; table: string };
+	| { kind: 'append'; entity: string; table: AppendTable };
 
 /** Every entity of the sync registry, then every append-only table: what a snapshot carries. */
 function snapshotSteps(): Step[] {
@@ -213,21 +281,26 @@ function decodeToken(s: string, last: number, steps: number): Token {
 }
 
 /** One step's rows from `after`, at most `want` (the step's own order: id, or seq for append-only rows). */
-async function readStep(s: Step, scope: Scope, base: number, after: string, want: number): Promise<{ id: string; change: ChangeText }[]> {
+type StepRows = { items: { id: string; change: ChangeText }[]; cut: boolean };
+const NONE: StepRows = { items: [], cut: false };
+
+/** One step's rows from `after`, at most `want` (the step's own order: id, or seq for append-only rows); `cut` when more follow. */
+async function readStep(s: Step, scope: Scope, base: number, after: string, want: number): Promise<StepRows> {
 	if (s.kind === 'mutable') {
 		const where = mutableWhere(s, scope);
-		if (!where) return [];
+		if (!where) return NONE;
 		const rows = await s.model.findAll({ where: after ? { ...where, id: { ...(where.id as object), [SqlOp.gt]: after } } : where, order: [['id', 'ASC']], limit: want });
 		const out = new Bytes();
-		return rows.map((row) => {
+		const items = rows.map((row) => {
 			const id = row.get('id') as string;
 			const change: Change = { seq: base || 1, entity: s.entity as Change['entity'], entityId: id, version: Number(row.get('version') ?? 1), op: 'upsert', record: s.toRecord(row as never) };
 			return { id, change: objectChange(change, out) };
 		});
+		return { items, cut: items.length === want };
 	}
-	if (!scope.jobs.length) return [];
-	const rows = await appendRows(s.entity, `SELECT * FROM ${s.table} WHERE job_id IN (${ids(scope.jobs)}) AND seq > ? AND seq <= ?`, [...scope.jobs, Number(after || 0), base], want);
-	return rows.map((change) => ({ id: String(change.seq), change }));
+	if (!scope.jobs.length) return NONE;
+	const { rows, cut } = await appendRows(s.entity, s.table, scope.jobs, 'seq > ? AND seq <= ?', [Number(after || 0), base], want);
+	return { items: rows.map((change) => ({ id: String(change.seq), change })), cut };
 }
 
 /**
@@ -251,13 +324,13 @@ async function snapshotPage(scope: Scope, token: Token, limit: number, include: 
 			if (end < steps.length) end++; // and the first append-only table (it usually fills the rest)
 		} else if (ended && steps[step - 1]?.kind === 'append') end = steps.length;
 		const group = steps.slice(step, end);
-		const reads = await Promise.all(group.map((s, k) => (include(s) ? readStep(s, scope, token.base, k === 0 ? after : '', want) : Promise.resolve([]))));
-		for (const got of reads) {
+		const reads = await Promise.all(group.map((s, k) => (include(s) ? readStep(s, scope, token.base, k === 0 ? after : '', want) : Promise.resolve(NONE))));
+		for (const { items: got, cut } of reads) {
 			const room = limit - changes.length;
 			const taken = got.length > room ? got.slice(0, room) : got;
 			for (const g of taken) changes.push(g.change);
-			// A step is done when it gave fewer rows than were wanted of it and all fit.
-			if (got.length < want && taken.length === got.length) {
+			// A step is done when nothing of it lies beyond what it gave and all of that fit.
+			if (!cut && taken.length === got.length) {
 				step++;
 				after = '';
 				ended = true;
