@@ -50,6 +50,7 @@ import { COIL_CHECKS, prng } from './lib/workload';
 import { benchMariaDb, freshBenchDatabase, stopOnInterrupt } from './lib/setup';
 import { Client } from '../tests/helpers/http';
 import { PUSH_BATCH } from '../src/lib/sync/protocol';
+import { STORED_CHANGE } from '../src/lib/server/db/append-tables';
 import {
 	evaluateReading,
 	meterFor,
@@ -409,8 +410,9 @@ async function main() {
 			batches: { device: number; rows: Record<string, unknown>[] }[]
 		) {
 			await pool!.query('TRUNCATE TABLE readings_raw');
-			// Not the generated `record_json` (the database writes it on either path).
-			const cols = Object.keys(batches[0].rows[0]).filter((c) => c !== 'created_at' && c !== 'record_json');
+			// Not the generated stored change (the database writes it on either path).
+			const generated = new Set(Object.values(STORED_CHANGE));
+			const cols = Object.keys(batches[0].rows[0]).filter((c) => c !== 'created_at' && !generated.has(c));
 			const tuple = `(${cols.map(() => '?').join(', ')}, UTC_TIMESTAMP(3))`;
 			const lanes = path === 'multiParallel' ? DEVICES : 1;
 			const conns = await Promise.all(Array.from({ length: lanes }, () => pool!.getConnection()));

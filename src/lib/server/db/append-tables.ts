@@ -43,14 +43,14 @@ export const camel = (s: string) => {
 };
 /** Columns holding JSON text. */
 export const JSON_COLUMNS = new Set(['samples', 'visual', 'device_result', 'server_result', 'before_counts', 'after_counts', 'inputs']);
-/** Never sent: the workshop, feed bookkeeping, where a photo's bytes are stored, and the stored change itself. */
-export const HIDDEN_COLUMNS = new Set(['workshop_id', 'op_id', 'seq', 'object_key', 'thumb_key', 'purged_at', 'record_json']);
 /**
- * Tables whose rows keep the change the pull sends, as JSON text after its seq (a STORED
- * generated column, `migrations/2026-12-02T16-40-reading-record.ts`): readings, the table
- * that grows. NULL where the pull must write the record itself (an OL reading's ±Infinity).
+ * Tables whose rows keep the change the pull sends, as JSON after its seq in UTF-8 bytes (a
+ * STORED generated column, `migrations/2026-12-02T16-40-reading-record.ts`): readings, the
+ * table that grows. NULL where the pull must write the record itself (an OL reading's ±Infinity).
  */
 export const STORED_CHANGE: Partial<Record<AppendTable, string>> = { readings: 'record_json' };
+/** Never sent: the workshop, feed bookkeeping, where a photo's bytes are stored, and the stored change itself. */
+export const HIDDEN_COLUMNS = new Set(['workshop_id', 'op_id', 'seq', 'object_key', 'thumb_key', 'purged_at', ...Object.values(STORED_CHANGE)]);
 /** JSON text as the record carries it (the reviver, for ±Infinity, only when the text holds one). */
 const json = (v: string) => (v.includes('Infinity') ? parseNumbers(v) : JSON.parse(v));
 
